@@ -1,0 +1,9 @@
+//! Vector-potential finite-element magnetostatics for Coercive.
+#![warn(missing_docs)]
+#![deny(rustdoc::broken_intra_doc_links)]
+
+pub mod bh;
+pub mod material;
+
+pub use bh::BhCurve;
+pub use material::{LinearMagnet, MagnetDirection, Material, Response, SoftMagnetic, MU_0};
