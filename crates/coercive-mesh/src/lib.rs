@@ -11,6 +11,7 @@ mod ids;
 mod mesh;
 mod point;
 pub mod structured;
+pub mod svg;
 
 pub use error::MeshError;
 pub use ids::{CurveId, PointId, RegionId, TriangleId, VertexId};
