@@ -7,13 +7,23 @@
 #![deny(rustdoc::broken_intra_doc_links)]
 
 mod error;
+mod geometry;
 mod ids;
 mod mesh;
+mod mesher;
 mod point;
+mod quality;
+mod rigid;
 pub mod structured;
 pub mod svg;
 
 pub use error::MeshError;
+pub use geometry::{
+    CurvePair, CurveShape, Geometry, GeometryCurve, GeometryPoint, GeometryRegion, MeshSettings,
+    RigidGroup,
+};
 pub use ids::{CurveId, PointId, RegionId, TriangleId, VertexId};
 pub use mesh::{Mesh, MeshCurve, MeshCurvePair, MeshRegion};
 pub use point::Point2;
+pub use quality::{QualityReport, RegionQuality, SmallInputAngle};
+pub use rigid::{Placement, RigidMesher};
