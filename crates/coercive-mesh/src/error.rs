@@ -2,8 +2,6 @@
 
 use thiserror::Error;
 
-use crate::Point2;
-
 /// Everything that can go wrong while describing or meshing a geometry. Each variant names
 /// the offending item (and its position where useful). Coordinates are in metres.
 #[derive(Debug, Clone, PartialEq, Error)]

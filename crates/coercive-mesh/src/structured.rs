@@ -21,6 +21,7 @@ pub fn rectangle(
 ) -> Result<Mesh, MeshError> {
     let bad = |what: String| MeshError::InvalidMesh { what };
     // Written to reject NaN as well.
+    #[allow(clippy::nonminimal_bool)]
     if !(x1 > x0 && y1 > y0)
         || !(x0.is_finite() && x1.is_finite() && y0.is_finite() && y1.is_finite())
     {
