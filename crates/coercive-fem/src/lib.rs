@@ -5,5 +5,7 @@
 pub mod bh;
 pub mod material;
 
-pub use bh::BhCurve;
-pub use material::{LinearMagnet, MagnetDirection, Material, Response, SoftMagnetic, MU_0};
+pub use bh::{BhCurve, BhKnot, BhTable};
+pub use material::{
+    LinearMagnet, MagnetDirection, Material, MaterialError, Response, SoftMagnetic, MU_0,
+};

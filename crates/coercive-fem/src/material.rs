@@ -5,6 +5,7 @@
 //! passes it in, so position-dependent magnetisation patterns cost nothing here.
 
 use serde::{Deserialize, Serialize};
+use thiserror::Error;
 
 use crate::bh::BhCurve;
 
@@ -91,4 +92,402 @@ pub enum Material {
     Soft(SoftMagnetic),
     /// Linear permanent magnet.
     Magnet(LinearMagnet),
+}
+
+/// Invalid material data: B-H points, law parameters, magnet values or an unknown preset.
+///
+/// Point indices are 0-based positions in the slice given by the caller.
+#[derive(Clone, Debug, PartialEq, Error)]
+#[non_exhaustive]
+pub enum MaterialError {
+    /// A B-H point holds a NaN or an infinity.
+    #[error("B-H point {index} (H = {h} A/m, B = {b} T) is not finite")]
+    NotFinite {
+        /// Index of the point.
+        index: usize,
+        /// Its H (A/m).
+        h: f64,
+        /// Its B (T).
+        b: f64,
+    },
+    /// A B-H point has a negative coordinate (give the first-quadrant branch only).
+    #[error(
+        "B-H point {index} (H = {h} A/m, B = {b} T) is negative; give the curve for H >= 0, B >= 0"
+    )]
+    Negative {
+        /// Index of the point.
+        index: usize,
+        /// Its H (A/m).
+        h: f64,
+        /// Its B (T).
+        b: f64,
+    },
+    /// A point has exactly one zero coordinate, or the origin appears other than first.
+    #[error(
+        "B-H point {index} (H = {h} A/m, B = {b} T) lies on an axis; a soft-material curve \
+         starts at the origin (given first or omitted) and has H > 0, B > 0 elsewhere"
+    )]
+    OffOrigin {
+        /// Index of the point.
+        index: usize,
+        /// Its H (A/m).
+        h: f64,
+        /// Its B (T).
+        b: f64,
+    },
+    /// H or B does not increase strictly from the previous point.
+    #[error(
+        "B-H point {index} (H = {h} A/m, B = {b} T) does not increase strictly from the \
+         previous point (H = {previous_h} A/m, B = {previous_b} T); a B-H curve must be \
+         strictly increasing in both H and B"
+    )]
+    NotMonotone {
+        /// Index of the point.
+        index: usize,
+        /// Its H (A/m).
+        h: f64,
+        /// Its B (T).
+        b: f64,
+        /// H of the previous accepted point (A/m).
+        previous_h: f64,
+        /// B of the previous accepted point (T).
+        previous_b: f64,
+    },
+    /// The secant from the previous point to this one is flatter than vacuum (dB/dH < mu_0).
+    #[error(
+        "B-H point {index} (H = {h} A/m, B = {b} T): the slope dB/dH from the previous point is \
+         {relative_slope} mu_0, below the vacuum slope mu_0, which no material shows; check the \
+         units (A/m, T) and that B, not the polarisation J, was given"
+    )]
+    FlatterThanVacuum {
+        /// Index of the point.
+        index: usize,
+        /// Its H (A/m).
+        h: f64,
+        /// Its B (T).
+        b: f64,
+        /// The secant slope divided by mu_0.
+        relative_slope: f64,
+    },
+    /// Fewer measured points than needed.
+    #[error("a B-H curve needs at least {required} points besides the origin, got {count}")]
+    TooFewPoints {
+        /// Points given (origin excluded).
+        count: usize,
+        /// Points required.
+        required: usize,
+    },
+    /// A processed table (deserialised) is inconsistent.
+    #[error("invalid processed B-H table: {reason}")]
+    InvalidTable {
+        /// What is wrong.
+        reason: String,
+    },
+    /// A scalar parameter is out of range.
+    #[error("{material}: {parameter} = {value} {reason}")]
+    InvalidParameter {
+        /// The material or law concerned.
+        material: String,
+        /// The parameter name (with its unit where it has one).
+        parameter: &'static str,
+        /// The value given.
+        value: f64,
+        /// Why it is rejected.
+        reason: &'static str,
+    },
+    /// A preset name that is not in the library.
+    #[error("unknown material preset {name:?}; known presets: {}", known.join(", "))]
+    UnknownPreset {
+        /// The name asked for.
+        name: String,
+        /// The names the library knows.
+        known: Vec<String>,
+    },
+}
+
+impl MagnetDirection {
+    /// Unit easy-axis vector at `point` (m) of a magnet whose region has centroid
+    /// `region_centroid` (m).
+    ///
+    /// `Fixed` ignores both arguments; `Radial` points from the centre to `point`; `Parallel`
+    /// points from the centre to the region centroid (uniform over the region). Inward patterns
+    /// are reversed. A degenerate radial direction (point on the centre) falls back to the
+    /// centroid direction, and a degenerate centroid direction to +x, so the result is always a
+    /// unit vector.
+    pub fn easy_axis_at(&self, point: [f64; 2], region_centroid: [f64; 2]) -> [f64; 2] {
+        let unit = |v: [f64; 2]| {
+            let n = v[0].hypot(v[1]);
+            if n > 0.0 && n.is_finite() {
+                Some([v[0] / n, v[1] / n])
+            } else {
+                None
+            }
+        };
+        let towards = |c: [f64; 2], p: [f64; 2]| unit([p[0] - c[0], p[1] - c[1]]);
+        match *self {
+            MagnetDirection::Fixed { angle } => [angle.cos(), angle.sin()],
+            MagnetDirection::Radial { centre, outward } => {
+                let e = towards(centre, point)
+                    .or_else(|| towards(centre, region_centroid))
+                    .unwrap_or([1.0, 0.0]);
+                if outward {
+                    e
+                } else {
+                    [-e[0], -e[1]]
+                }
+            }
+            MagnetDirection::Parallel { centre, outward } => {
+                let e = towards(centre, region_centroid).unwrap_or([1.0, 0.0]);
+                if outward {
+                    e
+                } else {
+                    [-e[0], -e[1]]
+                }
+            }
+        }
+    }
+
+    fn validate(&self) -> Result<(), MaterialError> {
+        let bad = |parameter: &'static str, value: f64| MaterialError::InvalidParameter {
+            material: "magnet direction".into(),
+            parameter,
+            value,
+            reason: "must be finite",
+        };
+        match *self {
+            MagnetDirection::Fixed { angle } if !angle.is_finite() => {
+                Err(bad("angle (rad)", angle))
+            }
+            MagnetDirection::Radial { centre, .. } | MagnetDirection::Parallel { centre, .. } => {
+                for v in centre {
+                    if !v.is_finite() {
+                        return Err(bad("centre (m)", v));
+                    }
+                }
+                Ok(())
+            }
+            _ => Ok(()),
+        }
+    }
+}
+
+/// Response of the orthotropic linear law H = nu_par (B.e - b_shift) e + nu_perp (B.e_perp)
+/// e_perp, with e_perp = e rotated by +90 degrees.
+fn orthotropic(b: [f64; 2], e: [f64; 2], nu_par: f64, nu_perp: f64, b_shift: f64) -> Response {
+    let p = [-e[1], e[0]];
+    let bp = b[0] * e[0] + b[1] * e[1] - b_shift;
+    let bq = b[0] * p[0] + b[1] * p[1];
+    let mut dh_db = [[0.0; 2]; 2];
+    for (i, row) in dh_db.iter_mut().enumerate() {
+        for (j, v) in row.iter_mut().enumerate() {
+            *v = nu_par * e[i] * e[j] + nu_perp * p[i] * p[j];
+        }
+    }
+    Response {
+        h: [
+            nu_par * bp * e[0] + nu_perp * bq * p[0],
+            nu_par * bp * e[1] + nu_perp * bq * p[1],
+        ],
+        dh_db,
+    }
+}
+
+fn check_permeability(
+    material: &str,
+    parameter: &'static str,
+    value: f64,
+    minimum_one: bool,
+) -> Result<(), MaterialError> {
+    let reason = if !value.is_finite() {
+        Some("must be finite")
+    } else if value <= 0.0 {
+        Some("must be positive")
+    } else if minimum_one && value < 1.0 {
+        Some("is below 1: a permanent magnet's recoil permeability is at least that of vacuum")
+    } else {
+        None
+    };
+    match reason {
+        Some(reason) => Err(MaterialError::InvalidParameter {
+            material: material.into(),
+            parameter,
+            value,
+            reason,
+        }),
+        None => Ok(()),
+    }
+}
+
+impl LinearMagnet {
+    /// Coercivity of this linear model, HcB = Br / (mu_0 mu_rec) (A/m): the field along the
+    /// easy axis at which B vanishes on the straight recoil line. Real grades with a knee
+    /// (ferrite, AlNiCo, high-remanence NdFeB) have a smaller published HcB.
+    pub fn model_coercivity(&self) -> f64 {
+        self.remanence / (MU_0 * self.recoil_permeability)
+    }
+}
+
+impl Material {
+    /// Air or any non-magnetic material (relative permeability 1).
+    pub fn vacuum() -> Material {
+        Material::Linear {
+            relative_permeability: 1.0,
+        }
+    }
+
+    /// H (A/m) and the exact tangent dH/dB (A/(m T)) at flux density `b` (T).
+    ///
+    /// `easy_axis` is the unit easy-axis vector at this point for magnets (see
+    /// [`MagnetDirection::easy_axis_at`]); other laws ignore it (an anisotropic material uses
+    /// its own principal angle).
+    ///
+    /// - Linear: H = nu B, nu = 1/(mu_0 mu_r).
+    /// - Anisotropic: H = nu_par (B.e) e + nu_perp (B.e_perp) e_perp.
+    /// - Soft: H = nu(|B|) B, tangent nu I + (dH/db - nu) B B^T/|B|^2 (= nu I + (dnu/db)/|B|
+    ///   B B^T), which tends smoothly to nu(0) I as B -> 0.
+    /// - Magnet: H = nu_par (B.e - Br) e + nu_perp (B.e_perp) e_perp with nu = 1/(mu_0 mu_r).
+    pub fn response(&self, b: [f64; 2], easy_axis: [f64; 2]) -> Response {
+        match self {
+            Material::Linear {
+                relative_permeability,
+            } => {
+                let nu = 1.0 / (MU_0 * relative_permeability);
+                Response {
+                    h: [nu * b[0], nu * b[1]],
+                    dh_db: [[nu, 0.0], [0.0, nu]],
+                }
+            }
+            Material::Anisotropic {
+                parallel,
+                perpendicular,
+                angle,
+            } => orthotropic(
+                b,
+                [angle.cos(), angle.sin()],
+                1.0 / (MU_0 * parallel),
+                1.0 / (MU_0 * perpendicular),
+                0.0,
+            ),
+            Material::Soft(soft) => {
+                let bm = b[0].hypot(b[1]);
+                let (nu, _) = soft.curve.reluctivity(bm);
+                let mut dh_db = [[nu, 0.0], [0.0, nu]];
+                if bm > 0.0 {
+                    let (_, slope) = soft.curve.h_of_b(bm);
+                    let u = [b[0] / bm, b[1] / bm];
+                    let extra = slope - nu;
+                    for (i, row) in dh_db.iter_mut().enumerate() {
+                        for (j, v) in row.iter_mut().enumerate() {
+                            *v += extra * u[i] * u[j];
+                        }
+                    }
+                }
+                Response {
+                    h: [nu * b[0], nu * b[1]],
+                    dh_db,
+                }
+            }
+            Material::Magnet(m) => orthotropic(
+                b,
+                easy_axis,
+                1.0 / (MU_0 * m.recoil_permeability),
+                1.0 / (MU_0 * m.perpendicular_permeability),
+                m.remanence,
+            ),
+        }
+    }
+
+    /// Energy density w (J/m^3): the integral of H . dB from the state H = 0 to `b` (T).
+    /// For magnets the H = 0 state is B = Br e. Exact for the interpolated B-H curve.
+    pub fn energy_density(&self, b: [f64; 2], easy_axis: [f64; 2]) -> f64 {
+        match self {
+            Material::Linear { .. } | Material::Anisotropic { .. } | Material::Magnet(_) => {
+                let r = self.response(b, easy_axis);
+                // Quadratic laws: w = (B - B_r).H / 2 with H linear in (B - B_r).
+                let shift = match self {
+                    Material::Magnet(m) => m.remanence,
+                    _ => 0.0,
+                };
+                let d = [b[0] - shift * easy_axis[0], b[1] - shift * easy_axis[1]];
+                0.5 * (d[0] * r.h[0] + d[1] * r.h[1])
+            }
+            Material::Soft(soft) => soft.curve.energy_density(b[0].hypot(b[1])),
+        }
+    }
+
+    /// Co-energy density w' = B.H - w (J/m^3) at `b` (T).
+    pub fn coenergy_density(&self, b: [f64; 2], easy_axis: [f64; 2]) -> f64 {
+        let r = self.response(b, easy_axis);
+        b[0] * r.h[0] + b[1] * r.h[1] - self.energy_density(b, easy_axis)
+    }
+
+    /// True when H is affine in B (the tangent is constant): one linear solve suffices.
+    pub fn is_linear(&self) -> bool {
+        !matches!(self, Material::Soft(_))
+    }
+
+    /// Checks every parameter: positive finite permeabilities, recoil permeability at least 1,
+    /// finite non-negative remanence, finite angles and centres.
+    ///
+    /// # Errors
+    /// [`MaterialError::InvalidParameter`] naming the parameter and its value.
+    pub fn validate(&self) -> Result<(), MaterialError> {
+        match self {
+            Material::Linear {
+                relative_permeability,
+            } => check_permeability(
+                "linear material",
+                "relative permeability",
+                *relative_permeability,
+                false,
+            ),
+            Material::Anisotropic {
+                parallel,
+                perpendicular,
+                angle,
+            } => {
+                check_permeability(
+                    "anisotropic material",
+                    "parallel permeability",
+                    *parallel,
+                    false,
+                )?;
+                check_permeability(
+                    "anisotropic material",
+                    "perpendicular permeability",
+                    *perpendicular,
+                    false,
+                )?;
+                if !angle.is_finite() {
+                    return Err(MaterialError::InvalidParameter {
+                        material: "anisotropic material".into(),
+                        parameter: "angle (rad)",
+                        value: *angle,
+                        reason: "must be finite",
+                    });
+                }
+                Ok(())
+            }
+            // The curve was checked when it was built or deserialised.
+            Material::Soft(_) => Ok(()),
+            Material::Magnet(m) => {
+                if !(m.remanence.is_finite() && m.remanence >= 0.0) {
+                    return Err(MaterialError::InvalidParameter {
+                        material: "magnet".into(),
+                        parameter: "remanence (T)",
+                        value: m.remanence,
+                        reason: "must be finite and non-negative (reverse the easy axis instead)",
+                    });
+                }
+                check_permeability("magnet", "recoil permeability", m.recoil_permeability, true)?;
+                check_permeability(
+                    "magnet",
+                    "perpendicular permeability",
+                    m.perpendicular_permeability,
+                    true,
+                )?;
+                m.direction.validate()
+            }
+        }
+    }
 }
