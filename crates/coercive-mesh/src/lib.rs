@@ -25,5 +25,5 @@ pub use geometry::{
 pub use ids::{CurveId, PointId, RegionId, TriangleId, VertexId};
 pub use mesh::{Mesh, MeshCurve, MeshCurvePair, MeshRegion};
 pub use point::Point2;
-pub use quality::{QualityReport, RegionQuality, SmallInputAngle};
+pub use quality::{triangle_angles_deg, QualityReport, RegionQuality, SmallInputAngle};
 pub use rigid::{Placement, RigidMesher};

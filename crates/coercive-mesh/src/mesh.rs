@@ -73,6 +73,26 @@ impl Mesh {
         Ok(mesh)
     }
 
+    /// Builds a mesh from its parts without checking (the mesher's own output, checked by
+    /// its tests).
+    pub(crate) fn from_parts_unchecked(
+        vertices: Vec<Point2>,
+        triangles: Vec<[VertexId; 3]>,
+        triangle_regions: Vec<RegionId>,
+        regions: Vec<MeshRegion>,
+        curves: Vec<MeshCurve>,
+        curve_pairs: Vec<MeshCurvePair>,
+    ) -> Self {
+        Self {
+            vertices,
+            triangles,
+            triangle_regions,
+            regions,
+            curves,
+            curve_pairs,
+        }
+    }
+
     /// Node coordinates (m).
     pub fn vertices(&self) -> &[Point2] {
         &self.vertices
