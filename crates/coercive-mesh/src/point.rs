@@ -22,7 +22,8 @@ impl Point2 {
     /// Euclidean distance to `other` (m).
     #[inline]
     pub fn distance(self, other: Point2) -> f64 {
-        (self.x - other.x).hypot(self.y - other.y)
+        let (dx, dy) = (self.x - other.x, self.y - other.y);
+        (dx * dx + dy * dy).sqrt()
     }
 
     /// True when both coordinates are finite.

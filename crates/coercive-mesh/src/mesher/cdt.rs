@@ -50,8 +50,24 @@ pub(crate) fn guarded<T>(what: &str, f: impl FnOnce() -> T) -> Result<T, MeshErr
 }
 
 /// Bulk-loads a CDT; crossing constraints become an error with coordinates.
-pub(crate) fn build(vertices: &[Point2], edges: Vec<[usize; 2]>) -> Result<Cdt, MeshError> {
-    let verts: Vec<SPoint> = vertices.iter().map(|&p| sp(p)).collect();
+///
+/// Four frame vertices are appended far outside the box `min`-`max`, so that every curve
+/// edge has a triangle on both sides (then splitting a curve edge never leaves a sliver
+/// against the hull). Faces touching a frame vertex are outside the drawing.
+pub(crate) fn build(
+    vertices: &[Point2],
+    edges: Vec<[usize; 2]>,
+    min: Point2,
+    max: Point2,
+) -> Result<Cdt, MeshError> {
+    let d = (max.x - min.x).hypot(max.y - min.y);
+    let mut verts: Vec<SPoint> = vertices.iter().map(|&p| sp(p)).collect();
+    verts.extend([
+        SPoint::new(min.x - d, min.y - d),
+        SPoint::new(max.x + d, min.y - d),
+        SPoint::new(max.x + d, max.y + d),
+        SPoint::new(min.x - d, max.y + d),
+    ]);
     let mut conflicts = Vec::new();
     let cdt = guarded("building the triangulation", || {
         Cdt::try_bulk_load_cdt(verts, edges, |e| conflicts.push(e))
@@ -68,7 +84,7 @@ pub(crate) fn build(vertices: &[Point2], edges: Vec<[usize; 2]>) -> Result<Cdt, 
             ),
         });
     }
-    if cdt.num_vertices() != vertices.len() {
+    if cdt.num_vertices() != vertices.len() + 4 {
         return Err(MeshError::TriangulationFailed {
             what: "coincident vertices after discretisation".into(),
         });
@@ -85,6 +101,13 @@ pub(crate) struct Seed<'a> {
 /// Labels faces by flood fill from every seed (label k + 1 for seed k) without crossing
 /// constraint edges; checks seeds and enclosed areas without a seed.
 pub(crate) fn label(cdt: &mut Cdt, seeds: &[Seed], tol: f64) -> Result<(), MeshError> {
+    let frame = cdt.num_vertices() - 4;
+    let outside = |cdt: &Cdt, f: FixedFaceHandle<InnerTag>| {
+        cdt.face(f)
+            .vertices()
+            .iter()
+            .any(|v| v.fix().index() >= frame)
+    };
     for f in cdt.fixed_inner_faces().collect::<Vec<_>>() {
         *cdt.face_data_mut(f) = 0;
     }
@@ -124,6 +147,9 @@ pub(crate) fn label(cdt: &mut Cdt, seeds: &[Seed], tol: f64) -> Result<(), MeshE
                 }
             }
         }
+        if outside(cdt, start) {
+            return Err(not_closed());
+        }
         let lab = k as u32 + 1;
         let existing = *cdt.face(start).data();
         if existing != 0 {
@@ -146,6 +172,9 @@ pub(crate) fn label(cdt: &mut Cdt, seeds: &[Seed], tol: f64) -> Result<(), MeshE
                 match e.rev().face().as_inner() {
                     None => return Err(not_closed()),
                     Some(n) => {
+                        if outside(cdt, n.fix()) {
+                            return Err(not_closed());
+                        }
                         if *n.data() == 0 {
                             next[k] = Some(n.fix());
                         }
@@ -162,7 +191,7 @@ pub(crate) fn label(cdt: &mut Cdt, seeds: &[Seed], tol: f64) -> Result<(), MeshE
     let nf = cdt.num_all_faces();
     let mut seen = vec![false; nf];
     for f in cdt.fixed_inner_faces().collect::<Vec<_>>() {
-        if seen[f.index()] || *cdt.face(f).data() != 0 {
+        if seen[f.index()] || *cdt.face(f).data() != 0 || outside(cdt, f) {
             continue;
         }
         seen[f.index()] = true;
@@ -176,6 +205,7 @@ pub(crate) fn label(cdt: &mut Cdt, seeds: &[Seed], tol: f64) -> Result<(), MeshE
                 }
                 match e.rev().face().as_inner() {
                     None => reaches_outside = true,
+                    Some(n) if outside(cdt, n.fix()) => reaches_outside = true,
                     Some(n) => {
                         if !seen[n.fix().index()] && *n.data() == 0 {
                             seen[n.fix().index()] = true;
@@ -222,6 +252,10 @@ pub(crate) struct Refiner<'a> {
     pub fixed: Vec<bool>,
     /// Per piece: its two break points.
     pub piece_ends: Vec<(u32, u32)>,
+    /// Per piece: the partner piece of a curve pair.
+    pub pair_of: Vec<Option<u32>>,
+    /// (vertex, piece) -> the matching vertex on the partner piece.
+    pub partner: HashMap<(u32, u32), u32>,
     /// Radius-edge bound B = 1 / (2 sin(min angle)).
     pub bad_ratio: f64,
     /// Refinement stops with an error above this many vertices.
@@ -262,6 +296,8 @@ impl<'a> Refiner<'a> {
             direct_piece,
             fixed,
             piece_ends,
+            pair_of: Vec::new(),
+            partner: HashMap::new(),
             bad_ratio,
             max_vertices,
             max_triangles,
@@ -577,7 +613,8 @@ impl<'a> Refiner<'a> {
 
     /// Splits a constraint edge (not fixed) at its middle, or at a power-of-two distance from
     /// an input vertex (concentric shells, so that runaway splitting next to small input
-    /// angles stops).
+    /// angles stops). An edge of a paired piece is split together with its partner edge at
+    /// the same fraction, so that paired curves keep matched nodes.
     pub fn split_segment(&mut self, e: FixedUndirectedEdgeHandle) -> Result<(), MeshError> {
         let de = self.cdt.directed_edge(e.as_directed());
         let (u, v) = (de.from().fix(), de.to().fix());
@@ -590,10 +627,6 @@ impl<'a> Refiner<'a> {
         if len < 2.0 * self.min_edge {
             return Ok(());
         }
-        let (lab_left, lab_right) = (
-            de.face().as_inner().map_or(0, |f| *f.data()),
-            de.rev().face().as_inner().map_or(0, |f| *f.data()),
-        );
         let u_input = (u.index()) < self.n_break;
         let v_input = (v.index()) < self.n_break;
         let t = if u_input != v_input {
@@ -609,6 +642,55 @@ impl<'a> Refiner<'a> {
         } else {
             0.5
         };
+        let (ui, vi) = (u.index() as u32, v.index() as u32);
+        let partner = self.pair_of[piece as usize].map(|other| {
+            let pu2 = self.partner.get(&(ui, piece)).copied();
+            let pv2 = self.partner.get(&(vi, piece)).copied();
+            (other, pu2, pv2)
+        });
+        let Some(w) = self.split_at(u, v, t, piece)? else {
+            return Ok(());
+        };
+        if let Some((other, Some(u2), Some(v2))) = partner {
+            let (hu2, hv2) = (
+                FixedVertexHandle::from_index(u2 as usize),
+                FixedVertexHandle::from_index(v2 as usize),
+            );
+            let Some(w2) = self.split_at(hu2, hv2, t, other)? else {
+                return Err(MeshError::TriangulationFailed {
+                    what: "a paired curve edge could not be split like its partner".into(),
+                });
+            };
+            let (w, w2) = (w.index() as u32, w2.index() as u32);
+            self.partner.insert((w, piece), w2);
+            self.partner.insert((w2, other), w);
+        } else if partner.is_some() {
+            return Err(MeshError::TriangulationFailed {
+                what: "a paired curve edge has no partner".into(),
+            });
+        }
+        Ok(())
+    }
+
+    /// Splits the constraint edge `u v` of `piece` at fraction `t` from `u`; returns the
+    /// new vertex (None if the point already existed).
+    fn split_at(
+        &mut self,
+        u: FixedVertexHandle,
+        v: FixedVertexHandle,
+        t: f64,
+        piece: u32,
+    ) -> Result<Option<FixedVertexHandle>, MeshError> {
+        let Some(de) = self.cdt.get_edge_from_neighbors(u, v) else {
+            return Err(MeshError::TriangulationFailed {
+                what: "a curve edge to split is missing".into(),
+            });
+        };
+        let (pu, pv) = (pt(de.from().position()), pt(de.to().position()));
+        let (lab_left, lab_right) = (
+            de.face().as_inner().map_or(0, |f| *f.data()),
+            de.rev().face().as_inner().map_or(0, |f| *f.data()),
+        );
         let m = Point2::new(pu.x + t * (pv.x - pu.x), pu.y + t * (pv.y - pu.y));
         let before = self.cdt.num_vertices();
         let cdt = &mut self.cdt;
@@ -618,7 +700,7 @@ impl<'a> Refiner<'a> {
             },
         )?;
         if w.index() < before {
-            return Ok(());
+            return Ok(None);
         }
         self.vpiece.push(piece);
         // Unless the point fell exactly on the edge (then spade split the constraint), make
@@ -684,7 +766,7 @@ impl<'a> Refiner<'a> {
                 self.segs.push_back(h.fix().as_undirected());
             }
         }
-        Ok(())
+        Ok(Some(w))
     }
 
     /// Spreads face `f`'s label to neighbours across non-constraint edges whose label

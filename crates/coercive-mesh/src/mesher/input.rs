@@ -378,11 +378,7 @@ pub(crate) fn prepare(g: &Geometry) -> Result<Prepared, MeshError> {
                     });
                 }
                 seg_seen.insert(key, ci);
-                raws.push(Raw {
-                    a,
-                    b,
-                    arc: None,
-                });
+                raws.push(Raw { a, b, arc: None });
             }
             CurveShape::Arc { centre, .. } => {
                 let (ra, rb) = (centre.distance(pa), centre.distance(pb));

@@ -52,6 +52,9 @@ pub(crate) struct Staged {
     pub nodes: Vec<Vec<f64>>,
     /// Per piece: never split by refinement.
     pub fixed: Vec<bool>,
+    /// Per piece: partner piece of a curve pair, and whether both run the same way from
+    /// their `a` ends.
+    pub pair_of: Vec<Option<(u32, bool)>>,
     pub seeds: Vec<(String, Point2)>,
     pub min_angle_deg: f64,
     pub max_triangles: usize,
@@ -78,7 +81,7 @@ impl Staged {
             .iter()
             .map(|p| [p.a as usize, p.b as usize])
             .collect();
-        let mut coarse = cdt::build(&prep.points, edges)?;
+        let mut coarse = cdt::build(&prep.points, edges, prep.min, prep.max)?;
         let seeds: Vec<(String, Point2)> =
             g.regions.iter().map(|r| (r.name.clone(), r.seed)).collect();
         let seed_refs: Vec<Seed> = seeds
@@ -194,6 +197,7 @@ impl Staged {
             size,
             nodes: Vec::new(),
             fixed: vec![false; prep.pieces.len()],
+            pair_of: vec![None; prep.pieces.len()],
             seeds,
             min_angle_deg: s.min_angle_deg,
             max_triangles: s.max_triangles,
@@ -314,8 +318,8 @@ impl Staged {
                 };
                 nodes[p1] = Some(conv(d1));
                 nodes[p2] = Some(conv(d2));
-                self.fixed[p1] = true;
-                self.fixed[p2] = true;
+                self.pair_of[p1] = Some((p2 as u32, d1 == d2));
+                self.pair_of[p2] = Some((p1 as u32, d1 == d2));
             }
         }
         for i in 0..np {
@@ -342,9 +346,12 @@ impl Staged {
         let mut vpiece = vec![NONE; n_break];
         let mut edges: Vec<[usize; 2]> = Vec::new();
         let mut direct = HashMap::new();
+        let mut piece_verts: Vec<Vec<u32>> = vec![Vec::new(); prep.pieces.len()];
         for (i, p) in prep.pieces.iter().enumerate() {
             let mut prev = p.a as usize;
+            piece_verts[i].push(p.a);
             for &t in &self.nodes[i] {
+                piece_verts[i].push(verts.len() as u32);
                 verts.push(p.at(&prep.points, t));
                 vpiece.push(i as u32);
                 let cur = verts.len() - 1;
@@ -352,6 +359,7 @@ impl Staged {
                 prev = cur;
             }
             edges.push([prev, p.b as usize]);
+            piece_verts[i].push(p.b);
             if self.nodes[i].is_empty() {
                 direct.insert((p.a.min(p.b), p.a.max(p.b)), i as u32);
             }
@@ -367,7 +375,8 @@ impl Staged {
                 edges.push([cur, next]);
             }
         }
-        let mut fine = cdt::build(&verts, edges)?;
+        let mut fine = cdt::build(&verts, edges, prep.min, prep.max)?;
+        vpiece.extend([NONE; 4]);
         let seed_refs: Vec<Seed> = self
             .seeds
             .iter()
@@ -392,6 +401,19 @@ impl Staged {
             self.max_triangles,
             prep.diag * 1e-7,
         );
+        let mut partner = HashMap::new();
+        for (i, pair) in self.pair_of.iter().enumerate() {
+            if let Some((o, same)) = *pair {
+                let (mine, theirs) = (&piece_verts[i], &piece_verts[o as usize]);
+                for (k, &v) in mine.iter().enumerate() {
+                    let k2 = if same { k } else { theirs.len() - 1 - k };
+                    partner.insert((v, i as u32), theirs[k2]);
+                }
+            }
+        }
+        refiner.pair_of = self.pair_of.iter().map(|p| p.map(|(o, _)| o)).collect();
+        refiner.pair_of.push(None);
+        refiner.partner = partner;
         refiner.refine()?;
         Ok(Fine {
             vpiece: refiner.vpiece,

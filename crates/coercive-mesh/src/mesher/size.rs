@@ -4,7 +4,7 @@
 //! sized points, sized curves, the outlines of regions with a size, and the automatic local
 //! feature size (gaps between curves). It is stored on a uniform background grid of nodes
 //! filled by stamping every source on its nearby nodes and then spreading the growth limit
-//! with two chamfer sweeps (8 neighbours: the spread distance overestimates the Euclidean one
+//! with a forward and a backward chamfer sweep (8 neighbours: the spread distance overestimates the Euclidean one
 //! by at most 8 %, so sizes grow slightly slower than `g`, never faster).
 //!
 //! A query at `x` returns min over the four nodes c of its cell of (H_c + g |x - c|): an upper
@@ -31,7 +31,7 @@ impl SizeField {
     /// cells no smaller than `min_cell`.
     pub fn new(min: Point2, max: Point2, cap: f64, growth: f64, min_cell: f64) -> Self {
         let (w, h) = ((max.x - min.x).max(1e-300), (max.y - min.y).max(1e-300));
-        let max_nodes = 1usize << 20;
+        let max_nodes = 1usize << 18;
         let mut cell = (w * h / max_nodes as f64).sqrt().max(min_cell);
         // Keep at least a few cells per side.
         cell = cell.min(w.max(h) / 4.0);
@@ -90,7 +90,7 @@ impl SizeField {
         let (nx, ny) = (self.nx, self.ny);
         let a = self.growth * self.cell;
         let d = a * std::f64::consts::SQRT_2;
-        for _ in 0..2 {
+        {
             for j in 0..ny {
                 for i in 0..nx {
                     let mut v = self.vals[j * nx + i];
@@ -140,7 +140,9 @@ impl SizeField {
         let mut best = self.cap;
         for (di, dj) in [(0, 0), (1, 0), (0, 1), (1, 1)] {
             let c = self.node(i + di, j + dj);
-            let v = self.vals[(j + dj) * self.nx + i + di] + self.growth * c.distance(x);
+            let (dx, dy) = (c.x - x.x, c.y - x.y);
+            let v =
+                self.vals[(j + dj) * self.nx + i + di] + self.growth * (dx * dx + dy * dy).sqrt();
             if v < best {
                 best = v;
             }
