@@ -245,16 +245,36 @@ impl Geometry {
     }
 
     /// Adds a closed polygon through `corners` (m), in the given order, and returns its
-    /// segments (segment `i` runs from corner `i` to corner `i + 1`).
+    /// sides (side `i` joins corner `i` and corner `i + 1`). A side joining the same two
+    /// points as an existing segment reuses that segment (an interface is one curve), so
+    /// its id may run the other way; [`Geometry::add_segment`] itself never reuses.
     pub fn add_polygon(&mut self, corners: &[Point2]) -> Vec<CurveId> {
         let ids: Vec<PointId> = corners.iter().map(|&p| self.add_point(p)).collect();
         (0..ids.len())
-            .map(|i| self.add_segment(ids[i], ids[(i + 1) % ids.len()]))
+            .map(|i| {
+                let (a, b) = (ids[i], ids[(i + 1) % ids.len()]);
+                self.find_segment(a, b)
+                    .unwrap_or_else(|| self.add_segment(a, b))
+            })
             .collect()
     }
 
+    /// The segment joining points `a` and `b` (either way), if any.
+    pub fn find_segment(&self, a: PointId, b: PointId) -> Option<CurveId> {
+        self.curves
+            .iter()
+            .position(|c| match c.shape {
+                CurveShape::Segment { start, end } => {
+                    (start == a && end == b) || (start == b && end == a)
+                }
+                CurveShape::Arc { .. } => false,
+            })
+            .map(|i| CurveId(i as u32))
+    }
+
     /// Adds an axis-aligned rectangle from its lower-left and upper-right corners (m).
-    /// Returns its sides counter-clockwise: bottom, right, top, left.
+    /// Returns its sides counter-clockwise: bottom, right, top, left (a side equal to an
+    /// existing segment reuses it, see [`Geometry::add_polygon`]).
     pub fn add_rectangle(&mut self, min: Point2, max: Point2) -> [CurveId; 4] {
         let c = self.add_polygon(&[
             min,
