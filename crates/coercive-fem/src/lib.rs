@@ -2,10 +2,32 @@
 #![warn(missing_docs)]
 #![deny(rustdoc::broken_intra_doc_links)]
 
+mod assembly;
 pub mod bh;
+mod dof;
+pub mod element;
+mod error;
+mod linsolve;
 pub mod material;
+pub mod model;
+pub mod newton;
+pub mod quadrature;
+mod solution;
+mod solver;
 
 pub use bh::{BhCurve, BhKnot, BhTable};
+pub use element::ElementOrder;
+pub use error::FemError;
+pub use linsolve::LinearSolverKind;
 pub use material::{
     LinearMagnet, MagnetDirection, Material, MaterialError, Response, SoftMagnetic, MU_0,
 };
+pub use model::{
+    BoundaryCondition, Formulation, Model, ModelBuilder, OpenBoundary, PotentialValue, ScalarField,
+    Sense, Winding, WindingSide,
+};
+pub use newton::{
+    NewtonFailure, NewtonFailureReason, NewtonReport, NewtonSettings, PhaseTimes, QuadratureState,
+};
+pub use solution::Solution;
+pub use solver::Solver;

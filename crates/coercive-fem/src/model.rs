@@ -1,0 +1,704 @@
+//! The [`Model`]: a mesh with a material per region, sources, boundary conditions, a
+//! formulation and an element order, validated once by [`ModelBuilder::build`].
+
+use std::fmt;
+use std::sync::Arc;
+
+use coercive_mesh::{CurveId, Mesh, Point2, RegionId};
+use serde::{Deserialize, Serialize};
+
+use crate::element::ElementOrder;
+use crate::material::Material;
+use crate::FemError;
+
+/// The field formulation.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "kind", rename_all = "snake_case")]
+pub enum Formulation {
+    /// Planar (x, y) fields with unknown A_z (Wb/m); B = (dA/dy, -dA/dx). Integrals are per
+    /// metre of depth; `depth_m` (m) turns them into totals.
+    Planar {
+        /// Stack depth (m), positive.
+        depth_m: f64,
+    },
+    /// Axisymmetric fields in (r, z) = (x, y) with unknown A_phi (Wb/m):
+    /// B_r = -dA/dz, B_z = dA/dr + A/r, A = 0 on the axis (imposed automatically on mesh
+    /// nodes at r = 0). Contours of r A_phi are flux lines (flux 2 pi r A_phi through the
+    /// circle of radius r). Integrals are totals over the full revolution.
+    ///
+    /// A_phi rather than the modified potential u = r A_phi is the unknown because near the
+    /// axis u ~ r^2 while A_phi ~ r: P1 elements represent A_phi exactly there but not u, and
+    /// with u the field within one element of the axis did not converge (measured: error of
+    /// B_z on the axis stayed near 0.9 T of 2 T under refinement in the manufactured test).
+    Axisymmetric,
+}
+
+/// The sense of a winding side: current along +z (planar) / +phi (axisymmetric), or against.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Sense {
+    /// Current along +z (planar) or +phi (axisymmetric).
+    Positive,
+    /// Current along -z or -phi.
+    Negative,
+}
+
+impl Sense {
+    /// +1 or -1.
+    #[inline]
+    pub fn sign(self) -> f64 {
+        match self {
+            Sense::Positive => 1.0,
+            Sense::Negative => -1.0,
+        }
+    }
+}
+
+/// One side of a winding: a region carrying all `turns` conductors with one sense.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct WindingSide {
+    /// The region holding the side's conductors.
+    pub region: String,
+    /// The current's sense in this side.
+    pub sense: Sense,
+}
+
+/// A winding of `turns` turns carrying `current_a` amperes. Each side is a region holding all
+/// `turns` conductors, so the current density in a side is `turns * current_a / area` (A/m^2),
+/// with the side's area taken from the mesh (uniform over the side: a stranded coil).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Winding {
+    /// The winding's name (used in errors and results).
+    pub name: String,
+    /// Number of turns (non-zero, finite).
+    pub turns: f64,
+    /// Current (A) in each turn.
+    pub current_a: f64,
+    /// The sides with their sense.
+    pub sides: Vec<WindingSide>,
+}
+
+impl Winding {
+    /// A winding without sides yet; add them with [`Winding::side`].
+    pub fn new(name: &str, turns: f64, current_a: f64) -> Self {
+        Self {
+            name: name.to_string(),
+            turns,
+            current_a,
+            sides: Vec::new(),
+        }
+    }
+
+    /// Adds a side: `region` carries the turns with `sense`.
+    pub fn side(mut self, region: &str, sense: Sense) -> Self {
+        self.sides.push(WindingSide {
+            region: region.to_string(),
+            sense,
+        });
+        self
+    }
+}
+
+/// A position-dependent scalar field f(x, y) (point in metres), e.g. a manufactured current
+/// density (A/m^2) or a prescribed potential.
+#[derive(Clone)]
+pub struct ScalarField(pub Arc<dyn Fn(Point2) -> f64 + Send + Sync>);
+
+impl ScalarField {
+    /// Wraps a closure.
+    pub fn new(f: impl Fn(Point2) -> f64 + Send + Sync + 'static) -> Self {
+        Self(Arc::new(f))
+    }
+
+    /// Evaluates the field at `p` (m).
+    #[inline]
+    pub fn at(&self, p: Point2) -> f64 {
+        (self.0)(p)
+    }
+}
+
+impl fmt::Debug for ScalarField {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str("ScalarField(..)")
+    }
+}
+
+/// The value a fixed potential prescribes.
+#[derive(Clone, Debug)]
+pub enum PotentialValue {
+    /// A constant: A_z (Wb/m) planar, A_phi (Wb/m) axisymmetric.
+    Constant(f64),
+    /// A value depending on the node position.
+    Field(ScalarField),
+}
+
+/// An open boundary by the Kelvin transformation (planar only).
+///
+/// The exterior of the circle `circle` (radius R, centre c) is mapped by inversion onto a
+/// disc of the same radius R meshed as region `exterior_region` elsewhere in the plane, with
+/// centre `exterior_centre` and boundary curve `exterior_boundary`. The mesh must hold a curve
+/// pair between `circle` and `exterior_boundary` whose matched nodes are translates of each
+/// other; a node must sit at `exterior_centre` (the image of infinity), where the potential
+/// is fixed to 0. The 2D Laplace equation is invariant under the inversion, so the exterior
+/// disc is filled with a material of relative permeability 1 (assigned automatically).
+///
+/// Reference: E. M. Freeman and D. A. Lowther, "A novel mapping technique for open boundary
+/// finite element solutions to Poisson's equation", IEEE Trans. Magn. 25(5), 1989.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct OpenBoundary {
+    /// Name of the circle curve(s) bounding the modelled interior.
+    pub circle: String,
+    /// Name of the exterior disc's boundary curve(s), paired with `circle` in the mesh.
+    pub exterior_boundary: String,
+    /// Name of the region meshing the exterior disc.
+    pub exterior_region: String,
+    /// Centre of the exterior disc (m): the image of infinity.
+    pub exterior_centre: [f64; 2],
+}
+
+/// A boundary condition (the default on every boundary is natural: B tangential... i.e. H
+/// tangential component zero, field normal to the boundary).
+#[derive(Clone, Debug)]
+pub enum BoundaryCondition {
+    /// Fixed potential on every curve named `curve`.
+    FixedPotential {
+        /// Curve name.
+        curve: String,
+        /// The prescribed value.
+        value: PotentialValue,
+    },
+    /// Periodic pair: the potential on `second` equals that on `first` at matched nodes.
+    Periodic {
+        /// First curve name.
+        first: String,
+        /// Second curve name.
+        second: String,
+    },
+    /// Anti-periodic pair: the potential on `second` is minus that on `first`.
+    AntiPeriodic {
+        /// First curve name.
+        first: String,
+        /// Second curve name.
+        second: String,
+    },
+    /// Open boundary by the Kelvin transformation.
+    Open(OpenBoundary),
+}
+
+/// Builder of a [`Model`]; every method records, [`ModelBuilder::build`] validates.
+#[derive(Clone, Debug)]
+pub struct ModelBuilder {
+    mesh: Arc<Mesh>,
+    formulation: Formulation,
+    order: ElementOrder,
+    materials: Vec<(String, Material)>,
+    current_densities: Vec<(String, f64)>,
+    current_density_fields: Vec<(String, ScalarField)>,
+    windings: Vec<Winding>,
+    boundary_conditions: Vec<BoundaryCondition>,
+}
+
+impl ModelBuilder {
+    /// Sets the element order (default P1).
+    pub fn order(mut self, order: ElementOrder) -> Self {
+        self.order = order;
+        self
+    }
+
+    /// Assigns `material` to the region named `region`.
+    pub fn material(mut self, region: &str, material: Material) -> Self {
+        self.materials.push((region.to_string(), material));
+        self
+    }
+
+    /// Adds a uniform current density `j` (A/m^2, along +z planar or +phi axisymmetric) in
+    /// region `region`.
+    pub fn current_density(mut self, region: &str, j: f64) -> Self {
+        self.current_densities.push((region.to_string(), j));
+        self
+    }
+
+    /// Adds a position-dependent current density (A/m^2) in region `region`.
+    pub fn current_density_field(mut self, region: &str, j: ScalarField) -> Self {
+        self.current_density_fields.push((region.to_string(), j));
+        self
+    }
+
+    /// Adds a winding.
+    pub fn winding(mut self, winding: Winding) -> Self {
+        self.windings.push(winding);
+        self
+    }
+
+    /// Sets the current (A) of the winding named `name` (no effect if there is none; `build`
+    /// does not complain, so use it on builders known to hold the winding).
+    pub fn winding_current(mut self, name: &str, current_a: f64) -> Self {
+        for w in self.windings.iter_mut().filter(|w| w.name == name) {
+            w.current_a = current_a;
+        }
+        self
+    }
+
+    /// Fixes the potential to `value` on every curve named `curve` (0 makes it a flux line).
+    pub fn fixed_potential(mut self, curve: &str, value: f64) -> Self {
+        self.boundary_conditions
+            .push(BoundaryCondition::FixedPotential {
+                curve: curve.to_string(),
+                value: PotentialValue::Constant(value),
+            });
+        self
+    }
+
+    /// Fixes the potential on every curve named `curve` to a function of position.
+    pub fn fixed_potential_field(mut self, curve: &str, value: ScalarField) -> Self {
+        self.boundary_conditions
+            .push(BoundaryCondition::FixedPotential {
+                curve: curve.to_string(),
+                value: PotentialValue::Field(value),
+            });
+        self
+    }
+
+    /// Periodic pair: potential on `second` equals potential on `first` at matched nodes.
+    pub fn periodic(mut self, first: &str, second: &str) -> Self {
+        self.boundary_conditions.push(BoundaryCondition::Periodic {
+            first: first.to_string(),
+            second: second.to_string(),
+        });
+        self
+    }
+
+    /// Anti-periodic pair: potential on `second` is minus that on `first`.
+    pub fn anti_periodic(mut self, first: &str, second: &str) -> Self {
+        self.boundary_conditions
+            .push(BoundaryCondition::AntiPeriodic {
+                first: first.to_string(),
+                second: second.to_string(),
+            });
+        self
+    }
+
+    /// Open boundary by the Kelvin transformation (planar only).
+    pub fn open_boundary(mut self, open: OpenBoundary) -> Self {
+        self.boundary_conditions.push(BoundaryCondition::Open(open));
+        self
+    }
+
+    /// Adds any boundary condition.
+    pub fn boundary_condition(mut self, bc: BoundaryCondition) -> Self {
+        self.boundary_conditions.push(bc);
+        self
+    }
+
+    /// Validates everything and builds the model.
+    ///
+    /// # Errors
+    /// A [`FemError`] naming the first offending item: a region without material, a material
+    /// or source for an unknown region, a duplicate material, an invalid material, an invalid
+    /// winding, a non-finite number, an unknown curve, an unmatched curve pair, a non-positive
+    /// depth, negative radii or an open boundary in an axisymmetric model.
+    pub fn build(self) -> Result<Model, FemError> {
+        let mesh = &self.mesh;
+        let nreg = mesh.regions().len();
+        let finite = |what: String, value: f64| {
+            if value.is_finite() {
+                Ok(())
+            } else {
+                Err(FemError::NotFinite { what, value })
+            }
+        };
+        let region = |what: &str, name: &str| {
+            mesh.region_by_name(name)
+                .ok_or_else(|| FemError::UnknownRegion {
+                    what: what.to_string(),
+                    region: name.to_string(),
+                })
+        };
+        match self.formulation {
+            Formulation::Planar { depth_m } => {
+                finite("planar depth (m)".into(), depth_m)?;
+                if depth_m <= 0.0 {
+                    return Err(FemError::OutOfRange {
+                        what: "planar depth (m)".into(),
+                        value: depth_m,
+                        reason: "must be positive".into(),
+                    });
+                }
+            }
+            Formulation::Axisymmetric => {
+                let extent = mesh_extent(mesh);
+                if let Some(p) = mesh.vertices().iter().find(|p| p.x < -1e-12 * extent) {
+                    return Err(FemError::OutOfRange {
+                        what: format!("radius of mesh node at ({} m, {} m)", p.x, p.y),
+                        value: p.x,
+                        reason: "axisymmetric models need r >= 0".into(),
+                    });
+                }
+            }
+        }
+
+        // Materials.
+        let mut materials: Vec<Option<Material>> = vec![None; nreg];
+        let mut open_regions = Vec::new();
+        for bc in &self.boundary_conditions {
+            if let BoundaryCondition::Open(o) = bc {
+                if self.formulation == Formulation::Axisymmetric {
+                    return Err(FemError::Unsupported {
+                        what: "open boundary in an axisymmetric model (the Kelvin \
+                               transformation implemented here is the planar one); enclose \
+                               the device in a larger air region with a fixed potential"
+                            .into(),
+                    });
+                }
+                let r = region("open boundary exterior", &o.exterior_region)?;
+                materials[r.index()] = Some(Material::vacuum());
+                open_regions.push(r);
+            }
+        }
+        for (name, m) in &self.materials {
+            let r = region("material", name)?;
+            if materials[r.index()].is_some() {
+                return Err(FemError::DuplicateMaterial {
+                    region: name.clone(),
+                });
+            }
+            m.validate().map_err(|e| FemError::InvalidMaterial {
+                region: name.clone(),
+                reason: e.to_string(),
+            })?;
+            materials[r.index()] = Some(m.clone());
+        }
+        let materials: Vec<Material> = materials
+            .into_iter()
+            .enumerate()
+            .map(|(i, m)| {
+                m.ok_or_else(|| FemError::MissingMaterial {
+                    region: mesh.regions()[i].name.clone(),
+                })
+            })
+            .collect::<Result<_, _>>()?;
+
+        // Sources.
+        let mut region_current_density = vec![0.0; nreg];
+        let mut region_areas = vec![0.0; nreg];
+        let mut region_centroids = vec![[0.0; 2]; nreg];
+        for (t, tri) in mesh.triangles().iter().enumerate() {
+            let r = mesh.triangle_regions()[t].index();
+            let a = mesh.triangle_area(coercive_mesh::TriangleId(t as u32));
+            let c = tri.iter().fold([0.0; 2], |acc, v| {
+                let p = mesh.vertex(*v);
+                [acc[0] + p.x / 3.0, acc[1] + p.y / 3.0]
+            });
+            region_areas[r] += a;
+            region_centroids[r][0] += a * c[0];
+            region_centroids[r][1] += a * c[1];
+        }
+        for (c, a) in region_centroids.iter_mut().zip(&region_areas) {
+            if *a > 0.0 {
+                c[0] /= a;
+                c[1] /= a;
+            }
+        }
+        for (name, j) in &self.current_densities {
+            let r = region("current density", name)?;
+            finite(format!("current density in region `{name}` (A/m^2)"), *j)?;
+            region_current_density[r.index()] += j;
+        }
+        let mut region_density_fields: Vec<Vec<ScalarField>> = vec![Vec::new(); nreg];
+        for (name, f) in &self.current_density_fields {
+            let r = region("current density field", name)?;
+            region_density_fields[r.index()].push(f.clone());
+        }
+        for w in &self.windings {
+            let bad = |reason: String| FemError::InvalidWinding {
+                winding: w.name.clone(),
+                reason,
+            };
+            finite(format!("turns of winding `{}`", w.name), w.turns)?;
+            finite(format!("current of winding `{}` (A)", w.name), w.current_a)?;
+            if w.turns == 0.0 {
+                return Err(bad("zero turns".into()));
+            }
+            if w.sides.is_empty() {
+                return Err(bad("no sides".into()));
+            }
+            for s in &w.sides {
+                let r = region(&format!("winding `{}` side", w.name), &s.region)?;
+                let area = region_areas[r.index()];
+                if area <= 0.0 {
+                    return Err(bad(format!("side `{}` has no area", s.region)));
+                }
+                region_current_density[r.index()] += s.sense.sign() * w.turns * w.current_a / area;
+            }
+        }
+
+        // Boundary conditions: names must exist; pairs must be matched.
+        for bc in &self.boundary_conditions {
+            match bc {
+                BoundaryCondition::FixedPotential { curve, value } => {
+                    curves_named(mesh, "fixed potential", curve)?;
+                    if let PotentialValue::Constant(v) = value {
+                        finite(format!("fixed potential on curve `{curve}`"), *v)?;
+                    }
+                }
+                BoundaryCondition::Periodic { first, second }
+                | BoundaryCondition::AntiPeriodic { first, second } => {
+                    matched_pairs(mesh, first, second)?;
+                }
+                BoundaryCondition::Open(o) => {
+                    for v in o.exterior_centre {
+                        finite("open boundary exterior centre (m)".into(), v)?;
+                    }
+                    let pairs = matched_pairs(mesh, &o.circle, &o.exterior_boundary)?;
+                    check_translated(mesh, &o.circle, &o.exterior_boundary, &pairs)?;
+                    centre_node(mesh, o)?;
+                }
+            }
+        }
+
+        Ok(Model {
+            mesh: self.mesh.clone(),
+            formulation: self.formulation,
+            order: self.order,
+            materials,
+            region_current_density,
+            region_density_fields,
+            region_areas,
+            region_centroids,
+            spec: self,
+        })
+    }
+}
+
+/// A validated magnetostatic model. Cheap to clone (the mesh is shared).
+///
+/// Build one with [`Model::builder`]; solve it with [`Model::solve`] or, to reuse the
+/// symbolic factorisation across models on the same mesh, with a [`Solver`](crate::Solver).
+#[derive(Clone, Debug)]
+pub struct Model {
+    mesh: Arc<Mesh>,
+    formulation: Formulation,
+    order: ElementOrder,
+    materials: Vec<Material>,
+    region_current_density: Vec<f64>,
+    region_density_fields: Vec<Vec<ScalarField>>,
+    region_areas: Vec<f64>,
+    region_centroids: Vec<[f64; 2]>,
+    spec: ModelBuilder,
+}
+
+impl Model {
+    /// Starts a model on `mesh` with `formulation`: element order P1, no materials, no
+    /// sources, natural boundaries everywhere.
+    pub fn builder(mesh: impl Into<Arc<Mesh>>, formulation: Formulation) -> ModelBuilder {
+        ModelBuilder {
+            mesh: mesh.into(),
+            formulation,
+            order: ElementOrder::P1,
+            materials: Vec::new(),
+            current_densities: Vec::new(),
+            current_density_fields: Vec::new(),
+            windings: Vec::new(),
+            boundary_conditions: Vec::new(),
+        }
+    }
+
+    /// A builder holding everything this model was built from, to derive a variant (e.g. a
+    /// different winding current with [`ModelBuilder::winding_current`]).
+    pub fn to_builder(&self) -> ModelBuilder {
+        self.spec.clone()
+    }
+
+    /// The mesh.
+    pub fn mesh(&self) -> &Arc<Mesh> {
+        &self.mesh
+    }
+
+    /// The formulation.
+    pub fn formulation(&self) -> Formulation {
+        self.formulation
+    }
+
+    /// The element order.
+    pub fn order(&self) -> ElementOrder {
+        self.order
+    }
+
+    /// The material of one region.
+    pub fn material(&self, r: RegionId) -> &Material {
+        &self.materials[r.index()]
+    }
+
+    /// Materials indexed by region.
+    pub fn materials(&self) -> &[Material] {
+        &self.materials
+    }
+
+    /// True if every material is linear (then one linear solve is exact).
+    pub fn is_linear(&self) -> bool {
+        self.materials.iter().all(Material::is_linear)
+    }
+
+    /// The uniform current density of each region (A/m^2), windings included.
+    pub fn region_current_densities(&self) -> &[f64] {
+        &self.region_current_density
+    }
+
+    /// Position-dependent current densities of each region.
+    pub(crate) fn region_density_fields(&self) -> &[Vec<ScalarField>] {
+        &self.region_density_fields
+    }
+
+    /// The area of each region (m^2).
+    pub fn region_areas(&self) -> &[f64] {
+        &self.region_areas
+    }
+
+    /// The area centroid of each region (m).
+    pub fn region_centroids(&self) -> &[[f64; 2]] {
+        &self.region_centroids
+    }
+
+    /// The windings.
+    pub fn windings(&self) -> &[Winding] {
+        &self.spec.windings
+    }
+
+    /// The boundary conditions.
+    pub fn boundary_conditions(&self) -> &[BoundaryCondition] {
+        &self.spec.boundary_conditions
+    }
+
+    /// The name of a region.
+    pub fn region_name(&self, r: RegionId) -> &str {
+        &self.mesh.regions()[r.index()].name
+    }
+
+    /// Solves the model with default Newton settings (see [`Solver::solve`](crate::Solver)).
+    ///
+    /// # Errors
+    /// See [`Solver::new`](crate::Solver::new) and [`Solver::solve`](crate::Solver::solve).
+    pub fn solve(&self) -> Result<crate::Solution, FemError> {
+        let solver = crate::Solver::new(self)?;
+        solver.solve(self, &crate::NewtonSettings::default())
+    }
+}
+
+/// The largest coordinate magnitude of the mesh (m), at least 1e-300.
+pub(crate) fn mesh_extent(mesh: &Mesh) -> f64 {
+    mesh.vertices()
+        .iter()
+        .fold(1e-300_f64, |m, p| m.max(p.x.abs()).max(p.y.abs()))
+}
+
+pub(crate) fn curves_named(mesh: &Mesh, what: &str, name: &str) -> Result<Vec<CurveId>, FemError> {
+    let c = mesh.curves_named(name);
+    if c.is_empty() {
+        return Err(FemError::UnknownCurve {
+            what: what.to_string(),
+            curve: name.to_string(),
+        });
+    }
+    Ok(c)
+}
+
+/// The mesh curve pairs joining curves named `first` and `second`, oriented so that
+/// `.0` is on `first`.
+pub(crate) fn matched_pairs(
+    mesh: &Mesh,
+    first: &str,
+    second: &str,
+) -> Result<Vec<(CurveId, CurveId)>, FemError> {
+    curves_named(mesh, "curve pair", first)?;
+    curves_named(mesh, "curve pair", second)?;
+    let name = |c: CurveId| mesh.curves()[c.index()].name.as_deref();
+    let mut out = Vec::new();
+    for p in mesh.curve_pairs() {
+        if name(p.first) == Some(first) && name(p.second) == Some(second) {
+            out.push((p.first, p.second));
+        } else if name(p.first) == Some(second) && name(p.second) == Some(first) {
+            out.push((p.second, p.first));
+        }
+    }
+    let unmatched = |reason: String| FemError::UnmatchedCurvePair {
+        first: first.to_string(),
+        second: second.to_string(),
+        reason,
+    };
+    if out.is_empty() {
+        return Err(unmatched(
+            "the mesh has no curve pair joining them (mesh them as a curve pair)".into(),
+        ));
+    }
+    for (a, b) in &out {
+        let (na, nb) = (mesh.curve_nodes(*a).len(), mesh.curve_nodes(*b).len());
+        if na != nb {
+            return Err(unmatched(format!(
+                "{na} nodes on one side, {nb} on the other"
+            )));
+        }
+    }
+    Ok(out)
+}
+
+/// Checks that the matched nodes of an open-boundary pair are translates of each other.
+fn check_translated(
+    mesh: &Mesh,
+    first: &str,
+    second: &str,
+    pairs: &[(CurveId, CurveId)],
+) -> Result<(), FemError> {
+    let extent = mesh_extent(mesh);
+    let mut shift: Option<(f64, f64)> = None;
+    for (a, b) in pairs {
+        for (va, vb) in mesh.curve_nodes(*a).iter().zip(mesh.curve_nodes(*b)) {
+            let (pa, pb) = (mesh.vertex(*va), mesh.vertex(*vb));
+            let d = (pb.x - pa.x, pb.y - pa.y);
+            match shift {
+                None => shift = Some(d),
+                Some(s) => {
+                    if (s.0 - d.0).hypot(s.1 - d.1) > 1e-6 * extent {
+                        return Err(FemError::UnmatchedCurvePair {
+                            first: first.to_string(),
+                            second: second.to_string(),
+                            reason: format!(
+                                "node ({} m, {} m) is not matched by a translate of the \
+                                 exterior circle (its partner is at ({} m, {} m))",
+                                pa.x, pa.y, pb.x, pb.y
+                            ),
+                        });
+                    }
+                }
+            }
+        }
+    }
+    Ok(())
+}
+
+/// The mesh node at the centre of an open boundary's exterior disc.
+pub(crate) fn centre_node(mesh: &Mesh, o: &OpenBoundary) -> Result<usize, FemError> {
+    let c = Point2::new(o.exterior_centre[0], o.exterior_centre[1]);
+    let (i, d) = mesh
+        .vertices()
+        .iter()
+        .enumerate()
+        .map(|(i, p)| (i, p.distance(c)))
+        .fold((usize::MAX, f64::INFINITY), |best, x| {
+            if x.1 < best.1 {
+                x
+            } else {
+                best
+            }
+        });
+    if d > 1e-9 * mesh_extent(mesh) {
+        return Err(FemError::OutOfRange {
+            what: format!(
+                "open boundary exterior centre ({} m, {} m) (nearest mesh node at {d} m)",
+                c.x, c.y
+            ),
+            value: d,
+            reason: "a mesh node must sit at the centre of the exterior disc".into(),
+        });
+    }
+    Ok(i)
+}

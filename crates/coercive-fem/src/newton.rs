@@ -1,0 +1,391 @@
+//! Newton-Raphson with the exact tangent and a back-tracking line search.
+//!
+//! The discrete problem is R(x) = F_int(x) - s F = 0, with F_int the virtual work of H(B)
+//! (magnets' remanence included), F the load of the current densities and s the load scale.
+//! Each iteration assembles the tangent dF_int/dx (symmetric for every law implemented, so a
+//! Cholesky factorisation on the shared symbolic analysis serves), solves for the update and
+//! backtracks (halving) until the residual norm decreases (Armijo-type sufficient decrease,
+//! Nocedal & Wright, Numerical Optimization, 2nd ed., sec. 3.1). The tangent assembled at an
+//! accepted trial point is reused for the next iteration, so an iteration costs one assembly,
+//! one numeric factorisation and one solve.
+//!
+//! Convergence needs both: relative residual ||R|| / ||R(x = 0)|| <= `residual_tolerance`
+//! and relative update ||dx|| / ||x|| <= `update_tolerance`. Linear models take one exact
+//! step. Failures are typed ([`NewtonFailure`]) and carry the last iterate and the history.
+
+// Index loops over local nodes mirror the formulas; iterator chains would hide them.
+#![allow(clippy::needless_range_loop)]
+
+use std::fmt;
+use std::time::Instant;
+
+use serde::{Deserialize, Serialize};
+
+use crate::assembly::{Assembler, Want};
+use crate::dof::{Layout, FIXED};
+use crate::linsolve::{Factor, FactorError, LinearSolverKind};
+
+/// Settings of Newton's method.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct NewtonSettings {
+    /// Relative residual tolerance, ||R|| / ||R(x = 0)|| (dimensionless).
+    pub residual_tolerance: f64,
+    /// Relative update tolerance, ||dx|| / ||x|| (dimensionless).
+    pub update_tolerance: f64,
+    /// Maximum number of Newton iterations.
+    pub max_iterations: usize,
+    /// Back-tracking line search on the residual norm (on by default).
+    pub line_search: bool,
+    /// Maximum number of step halvings per iteration.
+    pub max_halvings: usize,
+    /// The linear solver (used when a [`Solver`](crate::Solver) is created by
+    /// [`Model::solve`](crate::Model::solve); a `Solver` fixes its own).
+    pub linear_solver: LinearSolverKind,
+}
+
+impl Default for NewtonSettings {
+    fn default() -> Self {
+        Self {
+            residual_tolerance: 1e-8,
+            update_tolerance: 1e-8,
+            max_iterations: 30,
+            line_search: true,
+            max_halvings: 12,
+            linear_solver: LinearSolverKind::Cholesky,
+        }
+    }
+}
+
+/// Wall-clock time spent in each phase of a solve (s).
+#[derive(Clone, Copy, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub struct PhaseTimes {
+    /// Assembly of tangents, residuals and the load (s).
+    pub assembly_s: f64,
+    /// Numeric factorisations (s).
+    pub factorisation_s: f64,
+    /// Triangular solves (s).
+    pub solve_s: f64,
+}
+
+/// The log of a Newton solve.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub struct NewtonReport {
+    /// Iterations done (linear solves).
+    pub iterations: usize,
+    /// Relative residual norm before the first and after each iteration.
+    pub residual_norms: Vec<f64>,
+    /// Relative update norm of each iteration.
+    pub update_norms: Vec<f64>,
+    /// Accepted step length of each iteration (1 = full Newton step).
+    pub step_lengths: Vec<f64>,
+    /// True when both tolerances were met (always true in a returned `Solution`).
+    pub converged: bool,
+    /// Number of free unknowns.
+    pub unknowns: usize,
+    /// Time per phase.
+    pub times: PhaseTimes,
+}
+
+/// Why Newton's method stopped without converging.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[non_exhaustive]
+pub enum NewtonFailureReason {
+    /// The iteration limit was reached.
+    MaxIterations,
+    /// No step length reduced the residual.
+    LineSearch,
+    /// The residual or the update became NaN or infinite.
+    NotFinite,
+    /// The tangent could not be factorised.
+    Factorisation(String),
+}
+
+/// A failed Newton solve: the reason, the history and the last iterate.
+#[derive(Clone, Debug, PartialEq)]
+pub struct NewtonFailure {
+    /// Why it stopped.
+    pub reason: NewtonFailureReason,
+    /// The iteration history up to the failure.
+    pub report: NewtonReport,
+    /// The last iterate: the potential at every node (as in
+    /// [`Solution::potential`](crate::Solution::potential)).
+    pub last_potential: Vec<f64>,
+}
+
+impl fmt::Display for NewtonFailure {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(
+            f,
+            "Newton-Raphson did not converge ({:?}) after {} iterations; relative residuals {:?}",
+            self.reason, self.report.iterations, self.report.residual_norms
+        )
+    }
+}
+
+/// Per-quadrature-point material state with a committed and a trial copy, for history-
+/// dependent (hysteretic) laws. The laws implemented today are history-free and use no slots
+/// (`slots_per_point == 0`); the arrays are kept so that load steps commit a converged state
+/// and discard a failed one.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub struct QuadratureState {
+    /// Values per quadrature point.
+    pub slots_per_point: usize,
+    /// State after the last converged load step.
+    pub committed: Vec<f64>,
+    /// State of the current iterate.
+    pub trial: Vec<f64>,
+}
+
+impl QuadratureState {
+    /// Adopts the trial state after a converged step.
+    pub fn commit(&mut self) {
+        self.committed.clone_from(&self.trial);
+    }
+
+    /// Returns to the committed state after a failed step.
+    pub fn discard(&mut self) {
+        self.trial.clone_from(&self.committed);
+    }
+}
+
+/// Expands free unknowns `x` into nodal potentials `a` (fixed nodes from the layout).
+pub(crate) fn expand(layout: &Layout, x: &[f64], a: &mut [f64]) {
+    for (d, ad) in a.iter_mut().enumerate() {
+        let e = layout.dof_eq[d];
+        *ad = if e == FIXED {
+            layout.fixed_values[d]
+        } else {
+            layout.dof_sign[d] * x[e as usize]
+        };
+    }
+}
+
+/// Restricts nodal potentials to free unknowns.
+pub(crate) fn restrict(layout: &Layout, a: &[f64]) -> Vec<f64> {
+    let mut x = vec![0.0; layout.neq];
+    for (d, ad) in a.iter().enumerate() {
+        let e = layout.dof_eq[d];
+        if e != FIXED {
+            x[e as usize] = layout.dof_sign[d] * ad;
+        }
+    }
+    x
+}
+
+fn norm(v: &[f64]) -> f64 {
+    v.iter().map(|x| x * x).sum::<f64>().sqrt()
+}
+
+/// Outcome of [`run`] on failure: the failure itself, or a pivot failure at an equation.
+pub(crate) enum RunError {
+    Failed(Box<NewtonFailure>),
+    Pivot(usize, Box<NewtonFailure>),
+}
+
+/// Runs Newton's method from the nodal potential `a` (overwritten with the result).
+/// `load` is the scaled load vector.
+pub(crate) fn run(
+    asm: &Assembler<'_>,
+    factor: &mut Factor,
+    load: &[f64],
+    a: &mut [f64],
+    settings: &NewtonSettings,
+    linear: bool,
+) -> Result<NewtonReport, RunError> {
+    let layout = asm.layout;
+    let neq = layout.neq;
+    let mut report = NewtonReport {
+        unknowns: neq,
+        ..Default::default()
+    };
+    let mut values = vec![0.0; asm.pattern.nnz()];
+    let mut force = vec![0.0; neq];
+    let mut x = restrict(layout, a);
+
+    let assemble =
+        |a: &[f64], want: Want, force: &mut [f64], values: &mut [f64], t: &mut PhaseTimes| {
+            let t0 = Instant::now();
+            asm.assemble(a, want, force, values);
+            t.assembly_s += t0.elapsed().as_secs_f64();
+        };
+
+    // Reference: the residual at x = 0 (sources, remanence and fixed potentials only).
+    let mut a0 = vec![0.0; a.len()];
+    expand(layout, &vec![0.0; neq], &mut a0);
+    assemble(&a0, Want::Force, &mut force, &mut values, &mut report.times);
+    let reference = force
+        .iter()
+        .zip(load)
+        .map(|(f, l)| (f - l) * (f - l))
+        .sum::<f64>()
+        .sqrt();
+    drop(a0);
+
+    let fail = |reason: NewtonFailureReason, report: &NewtonReport, a: &[f64]| {
+        Box::new(NewtonFailure {
+            reason,
+            report: report.clone(),
+            last_potential: a.to_vec(),
+        })
+    };
+
+    expand(layout, &x, a);
+    if neq == 0 || reference == 0.0 {
+        // Nothing drives a field: the solution is the fixed values and zero elsewhere.
+        if reference == 0.0 {
+            x.fill(0.0);
+            expand(layout, &x, a);
+        }
+        report.residual_norms.push(0.0);
+        report.converged = true;
+        return Ok(report);
+    }
+
+    assemble(
+        a,
+        Want::ForceAndTangent,
+        &mut force,
+        &mut values,
+        &mut report.times,
+    );
+    let mut residual: Vec<f64> = force.iter().zip(load).map(|(f, l)| f - l).collect();
+    let mut rnorm = norm(&residual);
+    report.residual_norms.push(rnorm / reference);
+    let mut delta = vec![0.0; neq];
+    let mut x_trial = vec![0.0; neq];
+    let mut a_trial = vec![0.0; a.len()];
+
+    for _ in 0..settings.max_iterations {
+        let t0 = Instant::now();
+        if let Err(e) = factor.factorise(asm.pattern, &values) {
+            report.times.factorisation_s += t0.elapsed().as_secs_f64();
+            return Err(match e {
+                FactorError::Pivot(eq) => RunError::Pivot(
+                    eq,
+                    fail(
+                        NewtonFailureReason::Factorisation("non-positive pivot".into()),
+                        &report,
+                        a,
+                    ),
+                ),
+                FactorError::Other(msg) => {
+                    RunError::Failed(fail(NewtonFailureReason::Factorisation(msg), &report, a))
+                }
+            });
+        }
+        report.times.factorisation_s += t0.elapsed().as_secs_f64();
+        let t0 = Instant::now();
+        for (d, r) in delta.iter_mut().zip(&residual) {
+            *d = -r;
+        }
+        factor.solve_in_place(&mut delta);
+        report.times.solve_s += t0.elapsed().as_secs_f64();
+        report.iterations += 1;
+        if !delta.iter().all(|d| d.is_finite()) {
+            return Err(RunError::Failed(fail(
+                NewtonFailureReason::NotFinite,
+                &report,
+                a,
+            )));
+        }
+
+        // Line search (step halving) on the residual norm.
+        let mut alpha = 1.0;
+        let mut accepted = false;
+        let mut trial_norm = f64::INFINITY;
+        let halvings = if settings.line_search && !linear {
+            settings.max_halvings
+        } else {
+            0
+        };
+        let mut best: Option<(f64, f64)> = None;
+        for h in 0..=halvings {
+            for ((xt, xi), di) in x_trial.iter_mut().zip(&x).zip(&delta) {
+                *xt = xi + alpha * di;
+            }
+            expand(layout, &x_trial, &mut a_trial);
+            // A linear model stops after this step: its tangent is not needed again.
+            let want = if linear {
+                Want::Force
+            } else {
+                Want::ForceAndTangent
+            };
+            assemble(&a_trial, want, &mut force, &mut values, &mut report.times);
+            trial_norm = force
+                .iter()
+                .zip(load)
+                .map(|(f, l)| (f - l) * (f - l))
+                .sum::<f64>()
+                .sqrt();
+            let sufficient = trial_norm <= (1.0 - 1e-4 * alpha) * rnorm;
+            let tiny = trial_norm <= settings.residual_tolerance * reference;
+            if halvings == 0 || sufficient || tiny {
+                accepted = true;
+                break;
+            }
+            if trial_norm.is_finite() && best.is_none_or(|(_, n)| trial_norm < n) {
+                best = Some((alpha, trial_norm));
+            }
+            if h < halvings {
+                alpha *= 0.5;
+            }
+        }
+        if !accepted {
+            // No sufficient decrease: take the best step if it reduced the residual at all.
+            match best {
+                Some((b_alpha, b_norm)) if b_norm < rnorm => {
+                    alpha = b_alpha;
+                    for ((xt, xi), di) in x_trial.iter_mut().zip(&x).zip(&delta) {
+                        *xt = xi + alpha * di;
+                    }
+                    expand(layout, &x_trial, &mut a_trial);
+                    assemble(
+                        &a_trial,
+                        Want::ForceAndTangent,
+                        &mut force,
+                        &mut values,
+                        &mut report.times,
+                    );
+                    trial_norm = b_norm;
+                }
+                _ => {
+                    return Err(RunError::Failed(fail(
+                        NewtonFailureReason::LineSearch,
+                        &report,
+                        a,
+                    )));
+                }
+            }
+        }
+        std::mem::swap(&mut x, &mut x_trial);
+        a.copy_from_slice(&a_trial);
+        for ((r, f), l) in residual.iter_mut().zip(&force).zip(load) {
+            *r = f - l;
+        }
+        rnorm = trial_norm;
+        let xnorm = norm(&x);
+        let update = alpha * norm(&delta) / xnorm.max(f64::MIN_POSITIVE);
+        report.residual_norms.push(rnorm / reference);
+        report.update_norms.push(update);
+        report.step_lengths.push(alpha);
+        if !rnorm.is_finite() || !update.is_finite() {
+            return Err(RunError::Failed(fail(
+                NewtonFailureReason::NotFinite,
+                &report,
+                a,
+            )));
+        }
+        if linear
+            || (rnorm <= settings.residual_tolerance * reference
+                && update <= settings.update_tolerance)
+        {
+            report.converged = true;
+            return Ok(report);
+        }
+    }
+    Err(RunError::Failed(fail(
+        NewtonFailureReason::MaxIterations,
+        &report,
+        a,
+    )))
+}

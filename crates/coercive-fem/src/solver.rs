@@ -1,0 +1,244 @@
+//! The [`Solver`]: node layout, sparsity pattern and symbolic factorisation of a mesh,
+//! built once and shared by every solve on models with the same mesh and constraints.
+
+use std::sync::Arc;
+
+use coercive_mesh::Mesh;
+
+use crate::assembly::{stiffness_rule, Assembler, Pattern};
+use crate::dof::{Layout, FIXED};
+use crate::linsolve::{Factor, LinearSolverKind, Symbolic};
+use crate::newton::{self, NewtonFailureReason, NewtonSettings, QuadratureState, RunError};
+use crate::solution::Solution;
+use crate::{FemError, Model};
+
+/// Everything about a model's discretisation that does not depend on material values or
+/// sources: the node layout, the sparsity pattern with its element-to-slot map, and the
+/// symbolic factorisation (fill-reducing ordering and elimination structure).
+///
+/// Build it once per mesh, constraint layout and element order, then solve any number of
+/// models that differ only in materials, sources or fixed-potential values (a sweep of
+/// currents, load steps). Cheap to clone (shared internals).
+#[derive(Clone, Debug)]
+pub struct Solver {
+    mesh: Arc<Mesh>,
+    layout: Arc<Layout>,
+    pattern: Arc<Pattern>,
+    symbolic: Symbolic,
+    kind: LinearSolverKind,
+}
+
+impl Solver {
+    /// Prepares a Cholesky-based solver for `model`.
+    ///
+    /// # Errors
+    /// Constraint conflicts, [`FemError::FloatingRegions`] when part of the model has no fixed
+    /// potential (a singular system), and factorisation set-up failures.
+    pub fn new(model: &Model) -> Result<Solver, FemError> {
+        Self::with_linear_solver(model, LinearSolverKind::Cholesky)
+    }
+
+    /// Prepares a solver for `model` with the given linear solver.
+    ///
+    /// # Errors
+    /// As [`Solver::new`].
+    pub fn with_linear_solver(model: &Model, kind: LinearSolverKind) -> Result<Solver, FemError> {
+        let layout = Layout::new(model)?;
+        layout.check_floating(model)?;
+        let pattern = Pattern::new(&layout, kind == LinearSolverKind::Cholesky)?;
+        let symbolic = Symbolic::new(&pattern, kind)?;
+        Ok(Solver {
+            mesh: model.mesh().clone(),
+            layout: Arc::new(layout),
+            pattern: Arc::new(pattern),
+            symbolic,
+            kind,
+        })
+    }
+
+    /// Number of free unknowns.
+    pub fn unknowns(&self) -> usize {
+        self.layout.neq
+    }
+
+    /// Number of nodes (P1: mesh vertices; P2: vertices and edge midpoints).
+    pub fn nodes(&self) -> usize {
+        self.layout.ndofs()
+    }
+
+    /// Stored entries of the tangent matrix (upper triangle for Cholesky).
+    pub fn matrix_entries(&self) -> usize {
+        self.pattern.nnz()
+    }
+
+    /// Entries of the Cholesky factor (8 bytes each), if Cholesky is used.
+    pub fn factor_entries(&self) -> Option<usize> {
+        self.symbolic.factor_entries()
+    }
+
+    /// The linear solver in use.
+    pub fn linear_solver(&self) -> LinearSolverKind {
+        self.kind
+    }
+
+    /// The layout of `model`, checked to be compatible with this solver.
+    fn layout_for(&self, model: &Model) -> Result<Arc<Layout>, FemError> {
+        if !Arc::ptr_eq(&self.mesh, model.mesh()) && *self.mesh != **model.mesh() {
+            return Err(FemError::IncompatibleModel {
+                reason: "different mesh".into(),
+            });
+        }
+        if model.order() != self.layout.order {
+            return Err(FemError::IncompatibleModel {
+                reason: format!(
+                    "element order {:?} instead of {:?}",
+                    model.order(),
+                    self.layout.order
+                ),
+            });
+        }
+        let layout = Layout::new(model)?;
+        if layout.dof_eq != self.layout.dof_eq || layout.dof_sign != self.layout.dof_sign {
+            return Err(FemError::IncompatibleModel {
+                reason: "different boundary conditions (fixed or linked nodes)".into(),
+            });
+        }
+        Ok(Arc::new(layout))
+    }
+
+    /// Solves `model` from zero potential on the free nodes.
+    ///
+    /// # Errors
+    /// [`FemError::IncompatibleModel`], [`FemError::NewtonFailed`] (with the last iterate and
+    /// history), [`FemError::NotPositiveDefinite`] naming a node and region, or a
+    /// non-finite source.
+    pub fn solve(&self, model: &Model, settings: &NewtonSettings) -> Result<Solution, FemError> {
+        let mut steps = self.solve_load_steps(model, &[1.0], None, settings)?;
+        Ok(steps.remove(0))
+    }
+
+    /// Solves `model` starting from the potential of `initial` (a warm start, e.g. the
+    /// previous point of a sweep on the same mesh).
+    ///
+    /// # Errors
+    /// As [`Solver::solve`]; also if `initial` has a different number of nodes.
+    pub fn solve_from(
+        &self,
+        model: &Model,
+        initial: &Solution,
+        settings: &NewtonSettings,
+    ) -> Result<Solution, FemError> {
+        let mut steps = self.solve_load_steps(model, &[1.0], Some(initial), settings)?;
+        Ok(steps.remove(0))
+    }
+
+    /// Solves a sequence of load steps: the current densities (windings included) are scaled
+    /// by each factor in turn (remanence and fixed potentials are not scaled), each step
+    /// starting from the previous converged one (or from `initial`). Material state is
+    /// committed after each converged step.
+    ///
+    /// # Errors
+    /// As [`Solver::solve`]; the first failing step ends the sequence.
+    pub fn solve_load_steps(
+        &self,
+        model: &Model,
+        scales: &[f64],
+        initial: Option<&Solution>,
+        settings: &NewtonSettings,
+    ) -> Result<Vec<Solution>, FemError> {
+        let layout = self.layout_for(model)?;
+        for (i, s) in scales.iter().enumerate() {
+            if !s.is_finite() {
+                return Err(FemError::NotFinite {
+                    what: format!("load step {i} scale"),
+                    value: *s,
+                });
+            }
+        }
+        let model = Arc::new(model.clone());
+        let rule = stiffness_rule(model.formulation(), model.order());
+        let asm = Assembler {
+            model: &model,
+            layout: &layout,
+            pattern: &self.pattern,
+            rule,
+        };
+        let t0 = std::time::Instant::now();
+        let load = asm.load()?;
+        let load_time = t0.elapsed().as_secs_f64();
+        let mut a = vec![0.0; layout.ndofs()];
+        if let Some(init) = initial {
+            if init.potential().len() != a.len() {
+                return Err(FemError::IncompatibleModel {
+                    reason: format!(
+                        "initial solution has {} nodes, the model {}",
+                        init.potential().len(),
+                        a.len()
+                    ),
+                });
+            }
+            // Take the free values of the initial solution, and this model's fixed values.
+            let x = newton::restrict(&layout, init.potential());
+            newton::expand(&layout, &x, &mut a);
+        } else {
+            newton::expand(&layout, &vec![0.0; layout.neq], &mut a);
+        }
+        let mut factor = Factor::new(&self.symbolic)?;
+        let mut state = QuadratureState::default();
+        let linear = model.is_linear();
+        let mut out = Vec::with_capacity(scales.len());
+        let mut scaled = vec![0.0; load.len()];
+        for &s in scales {
+            for (y, l) in scaled.iter_mut().zip(&load) {
+                *y = s * l;
+            }
+            match newton::run(&asm, &mut factor, &scaled, &mut a, settings, linear) {
+                Ok(mut report) => {
+                    report.times.assembly_s += load_time;
+                    state.commit();
+                    out.push(Solution::new(
+                        model.clone(),
+                        layout.clone(),
+                        a.clone(),
+                        rule,
+                        report,
+                        s,
+                        state.clone(),
+                    ));
+                }
+                Err(RunError::Failed(f)) => {
+                    state.discard();
+                    return Err(FemError::NewtonFailed(f));
+                }
+                Err(RunError::Pivot(eq, f)) => {
+                    state.discard();
+                    return Err(pivot_error(&model, &layout, eq).unwrap_or_else(|| {
+                        let mut f = f;
+                        f.reason = NewtonFailureReason::Factorisation("non-positive pivot".into());
+                        FemError::NewtonFailed(f)
+                    }));
+                }
+            }
+        }
+        Ok(out)
+    }
+}
+
+/// Names the node, position and a region of the free equation `eq`.
+fn pivot_error(model: &Model, layout: &Layout, eq: usize) -> Option<FemError> {
+    let d = layout
+        .dof_eq
+        .iter()
+        .position(|&e| e != FIXED && e as usize == eq)?;
+    let t = (0..layout.element_dofs.len() / layout.nloc)
+        .find(|&t| layout.triangle_dofs(t).contains(&(d as u32)))?;
+    let p = layout.dof_points[d];
+    Some(FemError::NotPositiveDefinite {
+        node: d,
+        x: p[0],
+        y: p[1],
+        region: model
+            .region_name(model.mesh().triangle_regions()[t])
+            .to_string(),
+    })
+}
