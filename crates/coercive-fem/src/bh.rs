@@ -375,6 +375,9 @@ impl BhCurve {
         let mut t = width * target / (self.h[i + 1] - self.h[i]);
         for _ in 0..100 {
             let p = t * (c1 + t * (c2 + t * c3)) - target;
+            if p == 0.0 {
+                break;
+            }
             if p > 0.0 {
                 hi = t;
             } else {
@@ -382,7 +385,7 @@ impl BhCurve {
             }
             let dp = c1 + t * (2.0 * c2 + 3.0 * t * c3);
             let mut next = if dp > 0.0 { t - p / dp } else { f64::NAN };
-            if !(next > lo && next < hi) {
+            if !(next >= lo && next <= hi) {
                 next = 0.5 * (lo + hi);
             }
             if (next - t).abs() <= 1e-15 * width.max(f64::MIN_POSITIVE) {

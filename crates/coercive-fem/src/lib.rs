@@ -7,6 +7,7 @@ pub mod bh;
 mod dof;
 pub mod element;
 mod error;
+pub mod library;
 mod linsolve;
 pub mod material;
 pub mod model;
