@@ -337,3 +337,81 @@ pub fn ring_flux_closed_form(law: SaturatingLaw, current: f64, a: f64, b: f64) -
     let c = current / (2.0 * PI);
     MU_0 * c * (b / a).ln() + law.js * (c / law.h0) * ((c + law.h0 * b) / (c + law.h0 * a)).ln()
 }
+
+// ---------------------------------------------------------------------------------------------
+// Post-processing helpers written for the tests (independent of coercive-post)
+// ---------------------------------------------------------------------------------------------
+
+/// The triangle of `mesh` containing `p` (brute force; tests only).
+pub fn locate(mesh: &coercive::mesh::Mesh, p: [f64; 2]) -> coercive::mesh::TriangleId {
+    let mut best = (0usize, f64::NEG_INFINITY);
+    for (t, tri) in mesh.triangles().iter().enumerate() {
+        let [a, b, c] = tri.map(|v| mesh.vertex(v));
+        let d = (b.x - a.x) * (c.y - a.y) - (c.x - a.x) * (b.y - a.y);
+        let l1 = ((b.x - p[0]) * (c.y - p[1]) - (c.x - p[0]) * (b.y - p[1])) / d;
+        let l2 = ((c.x - p[0]) * (a.y - p[1]) - (a.x - p[0]) * (c.y - p[1])) / d;
+        let l3 = 1.0 - l1 - l2;
+        let m = l1.min(l2).min(l3);
+        if m > best.1 {
+            best = (t, m);
+        }
+    }
+    assert!(
+        best.1 > -1e-9,
+        "point ({}, {}) m is outside the mesh",
+        p[0],
+        p[1]
+    );
+    coercive::mesh::TriangleId(best.0 as u32)
+}
+
+/// B (T) of a solution at point `p` (m).
+pub fn b_at(sol: &coercive::fem::Solution, p: [f64; 2]) -> [f64; 2] {
+    let t = locate(sol.model().mesh(), p);
+    sol.flux_density_at(t, p)
+        .expect("point inside its triangle")
+}
+
+/// The potential (A_z planar, Wb/m) of a solution at point `p` (m).
+pub fn a_at(sol: &coercive::fem::Solution, p: [f64; 2]) -> f64 {
+    let t = locate(sol.model().mesh(), p);
+    sol.potential_at(t, p).expect("point inside its triangle")
+}
+
+/// Mean of the nodal potential over a planar region (Wb/m): exact integration of the P1 or
+/// P2 interpolant (a P2 triangle's vertex shape functions integrate to 0, its edge functions
+/// to area/3).
+pub fn region_mean_potential(sol: &coercive::fem::Solution, region: &str) -> f64 {
+    let mesh = sol.model().mesh();
+    let r = mesh.region_by_name(region).expect("region exists");
+    let (mut s, mut area) = (0.0, 0.0);
+    for t in 0..mesh.triangles().len() {
+        let t = coercive::mesh::TriangleId(t as u32);
+        if mesh.triangle_region(t) != r {
+            continue;
+        }
+        let nodes = sol.triangle_nodes(t);
+        let a = mesh.triangle_area(t);
+        let mean = if nodes.len() == 6 {
+            nodes[3..]
+                .iter()
+                .map(|&n| sol.potential()[n as usize])
+                .sum::<f64>()
+                / 3.0
+        } else {
+            nodes
+                .iter()
+                .map(|&n| sol.potential()[n as usize])
+                .sum::<f64>()
+                / 3.0
+        };
+        s += mean * a;
+        area += a;
+    }
+    s / area
+}
+
+/// |v| of a plane vector.
+pub fn norm(v: [f64; 2]) -> f64 {
+    v[0].hypot(v[1])
+}
