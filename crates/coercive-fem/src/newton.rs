@@ -4,8 +4,8 @@
 //! (magnets' remanence included), F the load of the current densities and s the load scale.
 //! Each iteration assembles the tangent dF_int/dx (symmetric for every law implemented, so a
 //! Cholesky factorisation on the shared symbolic analysis serves), solves for the update and
-//! backtracks (halving) until the residual norm decreases (Armijo-type sufficient decrease,
-//! Nocedal & Wright, Numerical Optimization, 2nd ed., sec. 3.1). The tangent assembled at an
+//! searches along it for a minimum of the energy functional, whose slope is R . dx
+//! (Nocedal & Wright, Numerical Optimization, 2nd ed., sec. 3.1). The tangent assembled at an
 //! accepted trial point is reused for the next iteration, so an iteration costs one assembly,
 //! one numeric factorisation and one solve.
 //!
@@ -34,10 +34,10 @@ pub struct NewtonSettings {
     pub update_tolerance: f64,
     /// Maximum number of Newton iterations.
     pub max_iterations: usize,
-    /// Back-tracking line search on the residual norm (on by default).
+    /// Line search on the energy functional (on by default).
     pub line_search: bool,
-    /// Maximum number of step halvings per iteration.
-    pub max_halvings: usize,
+    /// Maximum number of trial points (residual assemblies) per line search.
+    pub max_line_search_evaluations: usize,
     /// The linear solver (used when a [`Solver`](crate::Solver) is created by
     /// [`Model::solve`](crate::Model::solve); a `Solver` fixes its own).
     pub linear_solver: LinearSolverKind,
@@ -50,7 +50,7 @@ impl Default for NewtonSettings {
             update_tolerance: 1e-8,
             max_iterations: 30,
             line_search: true,
-            max_halvings: 12,
+            max_line_search_evaluations: 8,
             linear_solver: LinearSolverKind::Cholesky,
         }
     }
@@ -289,73 +289,86 @@ pub(crate) fn run(
             )));
         }
 
-        // Line search (step halving) on the residual norm.
-        let mut alpha = 1.0;
-        let mut accepted = false;
-        let mut trial_norm = f64::INFINITY;
-        let halvings = if settings.line_search && !linear {
-            settings.max_halvings
+        // Line search on the energy functional Pi(x + alpha dx), convex for monotone laws:
+        // its slope g(alpha) = R(x + alpha dx) . dx is driven towards zero by safeguarded
+        // regula falsi (Illinois variant) until |g| <= 0.5 |g(0)| (a curvature condition,
+        // Nocedal & Wright sec. 3.1). Every trial assembles the tangent too, so the accepted
+        // one is reused by the next iteration.
+        let g0: f64 = residual.iter().zip(&delta).map(|(r, d)| r * d).sum();
+        let evals = if settings.line_search && !linear && g0 < 0.0 {
+            settings.max_line_search_evaluations.max(1)
         } else {
-            0
+            1
         };
-        let mut best: Option<(f64, f64)> = None;
-        for h in 0..=halvings {
+        let want = if linear {
+            // A linear model stops after this step: its tangent is not needed again.
+            Want::Force
+        } else {
+            Want::ForceAndTangent
+        };
+        let mut alpha = 1.0;
+        let (mut lo, mut g_lo) = (0.0, g0);
+        let (mut hi, mut g_hi) = (f64::NAN, f64::NAN);
+        let mut side = 0i32;
+        let mut trial_norm = f64::INFINITY;
+        for k in 0..evals {
             for ((xt, xi), di) in x_trial.iter_mut().zip(&x).zip(&delta) {
                 *xt = xi + alpha * di;
             }
             expand(layout, &x_trial, &mut a_trial);
-            // A linear model stops after this step: its tangent is not needed again.
-            let want = if linear {
-                Want::Force
-            } else {
-                Want::ForceAndTangent
-            };
             assemble(&a_trial, want, &mut force, &mut values, &mut report.times);
-            trial_norm = force
-                .iter()
-                .zip(load)
-                .map(|(f, l)| (f - l) * (f - l))
-                .sum::<f64>()
-                .sqrt();
-            let sufficient = trial_norm <= (1.0 - 1e-4 * alpha) * rnorm;
-            let tiny = trial_norm <= settings.residual_tolerance * reference;
-            if halvings == 0 || sufficient || tiny {
-                accepted = true;
+            let mut g = 0.0;
+            let mut n2 = 0.0;
+            for ((f, l), d) in force.iter().zip(load).zip(&delta) {
+                let r = f - l;
+                g += r * d;
+                n2 += r * r;
+            }
+            trial_norm = n2.sqrt();
+            if k + 1 == evals
+                || !g.is_finite()
+                || g.abs() <= 0.5 * g0.abs()
+                || trial_norm <= settings.residual_tolerance * reference
+                || (g < 0.0 && hi.is_nan())
+            {
+                if !g.is_finite() && k + 1 < evals {
+                    // Overflow far out: treat as the far side of the minimum.
+                    hi = alpha;
+                    g_hi = f64::MAX;
+                    alpha = 0.5 * (lo + hi);
+                    continue;
+                }
                 break;
             }
-            if trial_norm.is_finite() && best.is_none_or(|(_, n)| trial_norm < n) {
-                best = Some((alpha, trial_norm));
+            if g < 0.0 {
+                lo = alpha;
+                g_lo = g;
+                if side == -1 {
+                    g_hi *= 0.5;
+                }
+                side = -1;
+            } else {
+                hi = alpha;
+                g_hi = g;
+                if side == 1 {
+                    g_lo *= 0.5;
+                }
+                side = 1;
             }
-            if h < halvings {
-                alpha *= 0.5;
-            }
+            let guess = lo - g_lo * (hi - lo) / (g_hi - g_lo);
+            let w = hi - lo;
+            alpha = if guess.is_finite() {
+                guess.clamp(lo + 0.02 * w, hi - 0.02 * w)
+            } else {
+                0.5 * (lo + hi)
+            };
         }
-        if !accepted {
-            // No sufficient decrease: take the best step if it reduced the residual at all.
-            match best {
-                Some((b_alpha, b_norm)) if b_norm < rnorm => {
-                    alpha = b_alpha;
-                    for ((xt, xi), di) in x_trial.iter_mut().zip(&x).zip(&delta) {
-                        *xt = xi + alpha * di;
-                    }
-                    expand(layout, &x_trial, &mut a_trial);
-                    assemble(
-                        &a_trial,
-                        Want::ForceAndTangent,
-                        &mut force,
-                        &mut values,
-                        &mut report.times,
-                    );
-                    trial_norm = b_norm;
-                }
-                _ => {
-                    return Err(RunError::Failed(fail(
-                        NewtonFailureReason::LineSearch,
-                        &report,
-                        a,
-                    )));
-                }
-            }
+        if !trial_norm.is_finite() {
+            return Err(RunError::Failed(fail(
+                NewtonFailureReason::LineSearch,
+                &report,
+                a,
+            )));
         }
         std::mem::swap(&mut x, &mut x_trial);
         a.copy_from_slice(&a_trial);
