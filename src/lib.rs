@@ -1,4 +1,7 @@
 //! Coercive: 2D finite-element magnetostatics.
+#![warn(missing_docs)]
 pub use coercive_fem as fem;
 pub use coercive_mesh as mesh;
 pub use coercive_post as post;
+
+pub mod case;

@@ -1,0 +1,1636 @@
+//! Case files: one TOML file describing one device (geometry, mesh settings and, in later
+//! sections, materials, windings and boundary conditions). The format is documented in
+//! `docs/case-format.md`.
+//!
+//! Reading a case checks the whole geometry part at once: unknown keys, unknown point names,
+//! non-finite or negative numbers are reported as a [`CaseError`] carrying the line and column
+//! (1-based) in the file. Lengths are converted from the declared `unit` to metres by dividing
+//! by the exact number of units per metre, so `12.5` millimetres become the `f64` nearest to
+//! 0.0125 m.
+
+use std::collections::BTreeMap;
+use std::fmt;
+use std::path::{Path, PathBuf};
+
+use coercive_mesh::{
+    CurveId, CurveShape, Geometry, GeometryPoint, GeometryRegion, Mesh, MeshError, MeshSettings,
+    Point2, PointId, QualityReport, RigidGroup,
+};
+use serde::Deserialize;
+use thiserror::Error;
+use toml::Spanned;
+
+/// A 1-based line and column in a case file.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Position {
+    /// Line number, starting at 1.
+    pub line: usize,
+    /// Column (in characters), starting at 1.
+    pub column: usize,
+}
+
+impl fmt::Display for Position {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "line {}, column {}", self.line, self.column)
+    }
+}
+
+impl Position {
+    /// The position of byte `offset` of `source` (clamped to the end of the text).
+    pub fn of_offset(source: &str, offset: usize) -> Self {
+        let mut offset = offset.min(source.len());
+        while !source.is_char_boundary(offset) {
+            offset -= 1;
+        }
+        let before = &source[..offset];
+        let line = before.matches('\n').count() + 1;
+        let line_start = before.rfind('\n').map_or(0, |i| i + 1);
+        Self {
+            line,
+            column: source[line_start..offset].chars().count() + 1,
+        }
+    }
+}
+
+fn at(p: &Option<Position>) -> String {
+    p.map_or_else(String::new, |p| format!(" ({p})"))
+}
+
+/// Everything that can go wrong while reading a case file or building its geometry.
+#[derive(Debug, Clone, PartialEq, Error)]
+#[non_exhaustive]
+pub enum CaseError {
+    /// The file could not be read.
+    #[error("cannot read case file {}: {message}", path.display())]
+    Io {
+        /// The file.
+        path: PathBuf,
+        /// The operating system's message.
+        message: String,
+    },
+    /// The text is not valid TOML, or does not follow the case format (an unknown key, a
+    /// missing key, a value of the wrong type).
+    #[error("{message}{}", at(position))]
+    Syntax {
+        /// What is wrong, as the TOML reader says it.
+        message: String,
+        /// Where, when known.
+        position: Option<Position>,
+    },
+    /// A name refers to a point, curve or region that the file does not define.
+    #[error("unknown {kind} `{name}` ({position})")]
+    UnknownName {
+        /// `point`, `curve`, `region`, ...
+        kind: &'static str,
+        /// The name as written.
+        name: String,
+        /// Where it is referred to.
+        position: Position,
+    },
+    /// A name is defined twice where names must be unique.
+    #[error("duplicate {kind} `{name}` ({position})")]
+    DuplicateName {
+        /// `point`, `region`, ...
+        kind: &'static str,
+        /// The name.
+        name: String,
+        /// Where the second definition is.
+        position: Position,
+    },
+    /// A value is out of range or inconsistent (a non-finite coordinate, a negative size, an
+    /// unknown unit, ...).
+    #[error("{what} ({position})")]
+    InvalidValue {
+        /// What is wrong, naming the item.
+        what: String,
+        /// Where.
+        position: Position,
+    },
+    /// The mesher rejected the geometry (or failed to mesh it). The position is that of the
+    /// curve, region or curve pair the mesher names, when it names one.
+    #[error("{source}{}", at(position))]
+    Mesh {
+        /// The mesher's error.
+        source: coercive_mesh::MeshError,
+        /// Where the offending item is defined in the case file, if known.
+        position: Option<Position>,
+    },
+    /// A geometry that cannot be written as a case file (a non-finite number, a paired
+    /// curve without a unique name).
+    #[error("cannot write the geometry as a case file: {what}")]
+    NotWritable {
+        /// What prevents it.
+        what: String,
+    },
+}
+
+/// The length unit a case file declares with `unit = "..."`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum LengthUnit {
+    /// `"m"`.
+    Metre,
+    /// `"cm"`.
+    Centimetre,
+    /// `"mm"`.
+    Millimetre,
+    /// `"um"` (micrometre).
+    Micrometre,
+    /// `"in"` (inch, 25.4 mm exactly).
+    Inch,
+}
+
+impl LengthUnit {
+    /// The unit spelled as in case files (`"m"`, `"cm"`, `"mm"`, `"um"`, `"in"`).
+    pub fn symbol(self) -> &'static str {
+        match self {
+            Self::Metre => "m",
+            Self::Centimetre => "cm",
+            Self::Millimetre => "mm",
+            Self::Micrometre => "um",
+            Self::Inch => "in",
+        }
+    }
+
+    /// Parses a unit symbol; `None` when unknown.
+    pub fn from_symbol(s: &str) -> Option<Self> {
+        Some(match s {
+            "m" => Self::Metre,
+            "cm" => Self::Centimetre,
+            "mm" => Self::Millimetre,
+            "um" | "µm" => Self::Micrometre,
+            "in" => Self::Inch,
+            _ => return None,
+        })
+    }
+
+    /// Converts a length in this unit to metres. Decimal units divide by the exact number
+    /// of units per metre (so the result is the double nearest to the true value); inches
+    /// multiply by 0.0254 m.
+    pub fn to_metres(self, v: f64) -> f64 {
+        match self {
+            Self::Metre => v,
+            Self::Centimetre => v / 100.0,
+            Self::Millimetre => v / 1e3,
+            Self::Micrometre => v / 1e6,
+            Self::Inch => v * 0.0254,
+        }
+    }
+
+    /// Converts a length in metres to this unit (inverse of [`LengthUnit::to_metres`]).
+    pub fn from_metres(self, v: f64) -> f64 {
+        match self {
+            Self::Metre => v,
+            Self::Centimetre => v * 100.0,
+            Self::Millimetre => v * 1e3,
+            Self::Micrometre => v * 1e6,
+            Self::Inch => v / 0.0254,
+        }
+    }
+}
+
+/// The field formulation a case declares with `formulation = "..."`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum CaseFormulation {
+    /// `"planar"` (the default): x-y cross-section of a device of finite depth.
+    Planar,
+    /// `"axisymmetric"`: the r-z half plane, x is the radius r >= 0.
+    Axisymmetric,
+}
+
+// ---------------------------------------------------------------------------------------------
+// Raw file structure (serde). Unknown keys are rejected everywhere.
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawCase {
+    unit: Spanned<String>,
+    #[serde(default)]
+    title: Option<String>,
+    #[serde(default)]
+    description: Option<String>,
+    #[serde(default)]
+    formulation: Option<Spanned<String>>,
+    #[serde(default)]
+    depth: Option<Spanned<f64>>,
+    #[serde(default)]
+    element_order: Option<Spanned<i64>>,
+    #[serde(default)]
+    mesh: RawMesh,
+    #[serde(default)]
+    geometry: RawGeometry,
+    #[serde(default)]
+    regions: BTreeMap<Spanned<String>, RawRegion>,
+    // Sections for the solver and post-processing. Their contents are read by the code that
+    // uses them (from `Case::source` with positions); here they are only kept.
+    #[serde(default)]
+    material: Vec<Spanned<toml::Table>>,
+    #[serde(default)]
+    winding: Vec<Spanned<toml::Table>>,
+    #[serde(default)]
+    boundary: Vec<Spanned<toml::Table>>,
+}
+
+#[derive(Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+struct RawMesh {
+    #[serde(default)]
+    max_size: Option<Spanned<f64>>,
+    #[serde(default)]
+    growth: Option<Spanned<f64>>,
+    #[serde(default)]
+    min_angle: Option<Spanned<f64>>,
+    #[serde(default)]
+    max_triangles: Option<Spanned<i64>>,
+    #[serde(default)]
+    chord_tolerance: Option<Spanned<f64>>,
+    #[serde(default)]
+    elements_across_gap: Option<Spanned<f64>>,
+    #[serde(default)]
+    snap_tolerance: Option<Spanned<f64>>,
+}
+
+#[derive(Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+struct RawGeometry {
+    #[serde(default)]
+    points: BTreeMap<Spanned<String>, Spanned<toml::Value>>,
+    #[serde(default)]
+    segments: Vec<RawSegment>,
+    #[serde(default)]
+    arcs: Vec<RawArc>,
+    #[serde(default)]
+    polylines: Vec<RawPolyline>,
+    #[serde(default)]
+    rectangles: Vec<RawRectangle>,
+    #[serde(default)]
+    circles: Vec<RawCircle>,
+    #[serde(default)]
+    curve_pairs: Vec<RawCurvePair>,
+    #[serde(default)]
+    rigid_groups: BTreeMap<Spanned<String>, Vec<Spanned<String>>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawSegment {
+    from: Spanned<String>,
+    to: Spanned<String>,
+    #[serde(default)]
+    name: Option<Spanned<String>>,
+    #[serde(default)]
+    size: Option<Spanned<f64>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawArc {
+    from: Spanned<String>,
+    to: Spanned<String>,
+    centre: Spanned<toml::Value>,
+    #[serde(default)]
+    clockwise: bool,
+    #[serde(default)]
+    name: Option<Spanned<String>>,
+    #[serde(default)]
+    size: Option<Spanned<f64>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawPolyline {
+    points: Spanned<Vec<Spanned<toml::Value>>>,
+    #[serde(default)]
+    closed: bool,
+    #[serde(default)]
+    name: Option<Spanned<String>>,
+    #[serde(default)]
+    size: Option<Spanned<f64>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawRectangle {
+    min: Spanned<[f64; 2]>,
+    max: Spanned<[f64; 2]>,
+    #[serde(default)]
+    name: Option<Spanned<String>>,
+    #[serde(default)]
+    size: Option<Spanned<f64>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawCircle {
+    centre: Spanned<toml::Value>,
+    radius: Spanned<f64>,
+    #[serde(default)]
+    name: Option<Spanned<String>>,
+    #[serde(default)]
+    size: Option<Spanned<f64>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawCurvePair {
+    first: Spanned<String>,
+    second: Spanned<String>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawRegion {
+    at: Spanned<[f64; 2]>,
+    #[serde(default)]
+    max_size: Option<Spanned<f64>>,
+    #[serde(default)]
+    hole: bool,
+    #[serde(default)]
+    material: Option<Spanned<String>>,
+}
+
+// ---------------------------------------------------------------------------------------------
+
+/// One curve-producing item of `[geometry]`.
+enum CurveItem<'a> {
+    Segment(&'a RawSegment),
+    Arc(&'a RawArc),
+    Polyline(&'a RawPolyline),
+    Rectangle(&'a RawRectangle),
+    Circle(&'a RawCircle),
+}
+
+/// Where each item of the built geometry comes from in the file.
+#[derive(Clone, Debug, Default)]
+struct Positions {
+    curves: Vec<Position>,
+    regions: Vec<Position>,
+    curve_pairs: Vec<Position>,
+    rigid_groups: Vec<Position>,
+}
+
+/// A case read from a TOML file. See `docs/case-format.md` for the format.
+#[derive(Clone, Debug)]
+pub struct Case {
+    source: String,
+    path: Option<PathBuf>,
+    unit: LengthUnit,
+    title: Option<String>,
+    description: Option<String>,
+    formulation: CaseFormulation,
+    depth_m: Option<f64>,
+    element_order: Option<u8>,
+    geometry: Geometry,
+    positions: Positions,
+    region_materials: Vec<(String, Option<String>)>,
+    sections: BTreeMap<&'static str, Vec<toml::Table>>,
+}
+
+impl Case {
+    /// Reads a case from TOML text, checking the format and the geometry part (names,
+    /// numbers, units).
+    ///
+    /// # Errors
+    /// [`CaseError::Syntax`] for invalid TOML, unknown or missing keys and wrong types;
+    /// [`CaseError::UnknownName`], [`CaseError::DuplicateName`] and
+    /// [`CaseError::InvalidValue`] for bad references and values. All carry the line and
+    /// column.
+    pub fn from_toml_str(source: &str) -> Result<Self, CaseError> {
+        let raw: RawCase = toml::from_str(source).map_err(|e| CaseError::Syntax {
+            message: e.message().trim().to_string(),
+            position: e.span().map(|s| Position::of_offset(source, s.start)),
+        })?;
+        Reader { source }.case(raw)
+    }
+
+    /// Reads a case file.
+    ///
+    /// # Errors
+    /// [`CaseError::Io`] when the file cannot be read, otherwise as
+    /// [`Case::from_toml_str`].
+    pub fn from_file(path: impl AsRef<Path>) -> Result<Self, CaseError> {
+        let path = path.as_ref();
+        let source = std::fs::read_to_string(path).map_err(|e| CaseError::Io {
+            path: path.to_path_buf(),
+            message: e.to_string(),
+        })?;
+        let mut case = Self::from_toml_str(&source)?;
+        case.path = Some(path.to_path_buf());
+        Ok(case)
+    }
+
+    /// The TOML text the case was read from (later sections parse their parts from it).
+    pub fn source(&self) -> &str {
+        &self.source
+    }
+
+    /// The file the case was read from, if it came from a file.
+    pub fn path(&self) -> Option<&Path> {
+        self.path.as_deref()
+    }
+
+    /// The declared length unit of the file (everything the case returns is in metres).
+    pub fn unit(&self) -> LengthUnit {
+        self.unit
+    }
+
+    /// The optional `title`.
+    pub fn title(&self) -> Option<&str> {
+        self.title.as_deref()
+    }
+
+    /// The optional `description`.
+    pub fn description(&self) -> Option<&str> {
+        self.description.as_deref()
+    }
+
+    /// The declared formulation (`planar` when not given).
+    pub fn formulation(&self) -> CaseFormulation {
+        self.formulation
+    }
+
+    /// The planar stack depth (m), if declared.
+    pub fn depth(&self) -> Option<f64> {
+        self.depth_m
+    }
+
+    /// The declared element order (1 or 2), if any.
+    pub fn element_order(&self) -> Option<u8> {
+        self.element_order
+    }
+
+    /// Region and hole names in file order.
+    pub fn region_names(&self) -> Vec<&str> {
+        self.geometry
+            .regions
+            .iter()
+            .map(|r| r.name.as_str())
+            .collect()
+    }
+
+    /// The `material` named in a region's `[regions.NAME]` table, if any.
+    pub fn region_material(&self, region: &str) -> Option<&str> {
+        self.region_materials
+            .iter()
+            .find(|(r, _)| r == region)
+            .and_then(|(_, m)| m.as_deref())
+    }
+
+    /// The raw tables of a later section (`"material"`, `"winding"`, `"boundary"`), in file
+    /// order; empty when absent. The code that gives these sections meaning parses them
+    /// (from [`Case::source`] when it needs positions).
+    pub fn section(&self, name: &str) -> &[toml::Table] {
+        self.sections.get(name).map_or(&[], Vec::as_slice)
+    }
+
+    /// The geometry part of the case, in metres, with the `[mesh]` settings.
+    ///
+    /// # Errors
+    /// None today (every check of the file is done when reading it); the `Result` leaves
+    /// room for geometry built from later sections.
+    pub fn geometry(&self) -> Result<Geometry, CaseError> {
+        Ok(self.geometry.clone())
+    }
+
+    /// Meshes the case's geometry and returns the mesh and its quality report.
+    ///
+    /// # Errors
+    /// [`CaseError::Mesh`] with the mesher's error and, when it names a curve, region,
+    /// curve pair or rigid group, the position of that item in the file.
+    pub fn mesh_with_report(
+        &self,
+        geometry: &Geometry,
+    ) -> Result<(Mesh, QualityReport), CaseError> {
+        geometry
+            .mesh_with_report()
+            .map_err(|e| self.locate_mesh_error(e))
+    }
+
+    /// Wraps a mesher error on this case's geometry into [`CaseError::Mesh`], adding the
+    /// file position of the item it names (curve, region, curve pair or rigid group) when
+    /// known.
+    pub fn locate_mesh_error(&self, source: MeshError) -> CaseError {
+        let p = &self.positions;
+        let region = |name: &str| {
+            self.geometry
+                .regions
+                .iter()
+                .position(|r| r.name == name)
+                .and_then(|i| p.regions.get(i).copied())
+        };
+        let position = match &source {
+            MeshError::UnknownPoint { curve, .. }
+            | MeshError::ZeroLengthCurve { curve, .. }
+            | MeshError::InconsistentArcRadii { curve, .. } => p.curves.get(*curve).copied(),
+            MeshError::DuplicateSegment { second, .. } => p.curves.get(*second).copied(),
+            MeshError::CurvePairMismatch { pair, .. } => p.curve_pairs.get(*pair).copied(),
+            MeshError::RegionNotClosed { region: r, .. }
+            | MeshError::SeedOnCurve { region: r, .. } => region(r),
+            MeshError::SeedsInSameArea { second, .. } => region(second),
+            MeshError::RigidGroup { group, .. } => self
+                .geometry
+                .rigid_groups
+                .iter()
+                .position(|g| &g.name == group)
+                .and_then(|i| p.rigid_groups.get(i).copied()),
+            _ => None,
+        };
+        CaseError::Mesh { source, position }
+    }
+}
+
+/// Turns raw, spanned values into the geometry, converting lengths to metres.
+struct Reader<'a> {
+    source: &'a str,
+}
+
+/// Lengths converted to metres, with the position of the value for messages.
+impl Reader<'_> {
+    fn pos<T>(&self, s: &Spanned<T>) -> Position {
+        Position::of_offset(self.source, s.span().start)
+    }
+
+    fn invalid<T>(&self, s: &Spanned<T>, what: String) -> CaseError {
+        CaseError::InvalidValue {
+            what,
+            position: self.pos(s),
+        }
+    }
+
+    /// A strictly positive, finite length (a size or radius), in metres.
+    fn positive(
+        &self,
+        unit: LengthUnit,
+        v: &Option<Spanned<f64>>,
+        what: &str,
+    ) -> Result<Option<f64>, CaseError> {
+        let Some(v) = v else { return Ok(None) };
+        let x = *v.get_ref();
+        if !(x.is_finite() && x > 0.0) {
+            return Err(self.invalid(
+                v,
+                format!(
+                    "{what} must be a positive length, got {x} {}",
+                    unit.symbol()
+                ),
+            ));
+        }
+        Ok(Some(unit.to_metres(x)))
+    }
+
+    /// A positive, finite dimensionless number.
+    fn positive_number(
+        &self,
+        v: &Option<Spanned<f64>>,
+        what: &str,
+        default: f64,
+    ) -> Result<f64, CaseError> {
+        match v {
+            None => Ok(default),
+            Some(v) if v.get_ref().is_finite() && *v.get_ref() > 0.0 => Ok(*v.get_ref()),
+            Some(v) => Err(self.invalid(
+                v,
+                format!("{what} must be a positive number, got {}", v.get_ref()),
+            )),
+        }
+    }
+
+    /// Finite coordinates converted to metres (and, in axisymmetric cases, r >= 0).
+    fn coords(
+        &self,
+        unit: LengthUnit,
+        xy: [f64; 2],
+        pos: Position,
+        what: &str,
+        axisymmetric: bool,
+    ) -> Result<Point2, CaseError> {
+        if !(xy[0].is_finite() && xy[1].is_finite()) {
+            return Err(CaseError::InvalidValue {
+                what: format!(
+                    "{what}: coordinates must be finite, got [{}, {}]",
+                    xy[0], xy[1]
+                ),
+                position: pos,
+            });
+        }
+        if axisymmetric && xy[0] < 0.0 {
+            return Err(CaseError::InvalidValue {
+                what: format!(
+                    "{what}: negative radius r = {} {} in an axisymmetric case",
+                    xy[0],
+                    unit.symbol()
+                ),
+                position: pos,
+            });
+        }
+        Ok(Point2::new(unit.to_metres(xy[0]), unit.to_metres(xy[1])))
+    }
+
+    /// Reads `[x, y]` from a TOML value.
+    fn value_xy(v: &toml::Value) -> Option<[f64; 2]> {
+        let arr = v.as_array()?;
+        if arr.len() != 2 {
+            return None;
+        }
+        let num = |v: &toml::Value| v.as_float().or_else(|| v.as_integer().map(|i| i as f64));
+        Some([num(&arr[0])?, num(&arr[1])?])
+    }
+
+    fn case(&self, raw: RawCase) -> Result<Case, CaseError> {
+        let unit = LengthUnit::from_symbol(raw.unit.get_ref()).ok_or_else(|| {
+            self.invalid(
+                &raw.unit,
+                format!(
+                    "unknown length unit `{}` (use \"m\", \"cm\", \"mm\", \"um\" or \"in\")",
+                    raw.unit.get_ref()
+                ),
+            )
+        })?;
+        let formulation = match &raw.formulation {
+            None => CaseFormulation::Planar,
+            Some(f) => match f.get_ref().as_str() {
+                "planar" => CaseFormulation::Planar,
+                "axisymmetric" => CaseFormulation::Axisymmetric,
+                other => {
+                    return Err(self.invalid(
+                        f,
+                        format!(
+                            "unknown formulation `{other}` (use \"planar\" or \"axisymmetric\")"
+                        ),
+                    ))
+                }
+            },
+        };
+        let axi = formulation == CaseFormulation::Axisymmetric;
+        let depth_m = self.positive(unit, &raw.depth, "depth")?;
+        if let (true, Some(d)) = (axi, &raw.depth) {
+            return Err(self.invalid(d, "an axisymmetric case has no depth".into()));
+        }
+        let element_order = match &raw.element_order {
+            None => None,
+            Some(o) if matches!(o.get_ref(), 1 | 2) => Some(*o.get_ref() as u8),
+            Some(o) => {
+                return Err(self.invalid(
+                    o,
+                    format!("element_order must be 1 or 2, got {}", o.get_ref()),
+                ))
+            }
+        };
+        let mut geometry = Geometry::new();
+        geometry.settings = self.mesh_settings(unit, &raw.mesh)?;
+        let mut positions = Positions::default();
+        self.geometry(unit, &raw.geometry, axi, &mut geometry, &mut positions)?;
+
+        // Regions in file order.
+        let mut regions: Vec<(Spanned<String>, RawRegion)> = raw.regions.into_iter().collect();
+        regions.sort_by_key(|(k, _)| k.span().start);
+        let mut region_materials = Vec::new();
+        for (name, r) in &regions {
+            let what = format!("region `{}`", name.get_ref());
+            let seed = self.coords(unit, *r.at.get_ref(), self.pos(&r.at), &what, axi)?;
+            if let (true, Some(m)) = (r.hole, &r.material) {
+                return Err(self.invalid(m, format!("{what} is a hole: it takes no material")));
+            }
+            geometry.regions.push(GeometryRegion {
+                name: name.get_ref().clone(),
+                seed,
+                hole: r.hole,
+                size: self.positive(unit, &r.max_size, &format!("{what}: max_size"))?,
+            });
+            positions.regions.push(self.pos(name));
+            region_materials.push((
+                name.get_ref().clone(),
+                r.material.as_ref().map(|m| m.get_ref().clone()),
+            ));
+        }
+
+        // Rigid groups (they name regions, so they are read after them).
+        let mut groups: Vec<_> = raw.geometry.rigid_groups.iter().collect();
+        groups.sort_by_key(|(k, _)| k.span().start);
+        for (name, members) in groups {
+            let mut names = Vec::with_capacity(members.len());
+            for m in members {
+                if !geometry.regions.iter().any(|r| &r.name == m.get_ref()) {
+                    return Err(CaseError::UnknownName {
+                        kind: "region",
+                        name: m.get_ref().clone(),
+                        position: self.pos(m),
+                    });
+                }
+                if names.contains(m.get_ref()) {
+                    return Err(CaseError::DuplicateName {
+                        kind: "region in a rigid group",
+                        name: m.get_ref().clone(),
+                        position: self.pos(m),
+                    });
+                }
+                if let Some(other) = geometry
+                    .rigid_groups
+                    .iter()
+                    .find(|g| g.regions.contains(m.get_ref()))
+                {
+                    return Err(self.invalid(
+                        m,
+                        format!(
+                            "region `{}` is already in rigid group `{}`",
+                            m.get_ref(),
+                            other.name
+                        ),
+                    ));
+                }
+                names.push(m.get_ref().clone());
+            }
+            if names.is_empty() {
+                return Err(self.invalid(
+                    name,
+                    format!("rigid group `{}` has no region", name.get_ref()),
+                ));
+            }
+            geometry.rigid_groups.push(RigidGroup {
+                name: name.get_ref().clone(),
+                regions: names,
+            });
+            positions.rigid_groups.push(self.pos(name));
+        }
+
+        let mut sections = BTreeMap::new();
+        for (key, tables) in [
+            ("material", raw.material),
+            ("winding", raw.winding),
+            ("boundary", raw.boundary),
+        ] {
+            sections.insert(key, tables.into_iter().map(Spanned::into_inner).collect());
+        }
+        Ok(Case {
+            source: self.source.to_string(),
+            path: None,
+            unit,
+            title: raw.title,
+            description: raw.description,
+            formulation,
+            depth_m,
+            element_order,
+            geometry,
+            positions,
+            region_materials,
+            sections,
+        })
+    }
+
+    fn mesh_settings(&self, unit: LengthUnit, m: &RawMesh) -> Result<MeshSettings, CaseError> {
+        let d = MeshSettings::default();
+        let min_angle_deg = match &m.min_angle {
+            None => d.min_angle_deg,
+            Some(a) if a.get_ref().is_finite() && *a.get_ref() > 0.0 && *a.get_ref() < 60.0 => {
+                *a.get_ref()
+            }
+            Some(a) => {
+                return Err(self.invalid(
+                    a,
+                    format!(
+                        "mesh min_angle must be between 0 and 60 degrees, got {}",
+                        a.get_ref()
+                    ),
+                ))
+            }
+        };
+        let max_triangles = match &m.max_triangles {
+            None => d.max_triangles,
+            Some(n) if *n.get_ref() > 0 => *n.get_ref() as usize,
+            Some(n) => {
+                return Err(self.invalid(
+                    n,
+                    format!("mesh max_triangles must be positive, got {}", n.get_ref()),
+                ))
+            }
+        };
+        let elements_across_gap = match &m.elements_across_gap {
+            None => d.elements_across_gap,
+            Some(v) if v.get_ref().is_finite() && *v.get_ref() >= 0.0 => *v.get_ref(),
+            Some(v) => {
+                return Err(self.invalid(
+                    v,
+                    format!(
+                        "mesh elements_across_gap must be zero or positive, got {}",
+                        v.get_ref()
+                    ),
+                ))
+            }
+        };
+        Ok(MeshSettings {
+            max_size: self.positive(unit, &m.max_size, "mesh max_size")?,
+            growth: self.positive_number(&m.growth, "mesh growth", d.growth)?,
+            min_angle_deg,
+            max_triangles,
+            chord_tolerance: self.positive(unit, &m.chord_tolerance, "mesh chord_tolerance")?,
+            elements_across_gap,
+            snap_tolerance: self.positive_number(
+                &m.snap_tolerance,
+                "mesh snap_tolerance",
+                d.snap_tolerance,
+            )?,
+        })
+    }
+
+    fn geometry(
+        &self,
+        unit: LengthUnit,
+        raw: &RawGeometry,
+        axi: bool,
+        g: &mut Geometry,
+        positions: &mut Positions,
+    ) -> Result<(), CaseError> {
+        // Named points, in file order. They are kept as given (not merged with other points
+        // at the same place), so a written geometry reads back with the same numbering.
+        let mut by_name: BTreeMap<String, PointId> = BTreeMap::new();
+        let mut named: Vec<_> = raw.points.iter().collect();
+        named.sort_by_key(|(k, _)| k.span().start);
+        for (name, value) in named {
+            let what = format!("point `{}`", name.get_ref());
+            let pos = self.pos(value);
+            let syntax = |message: String| CaseError::Syntax {
+                message,
+                position: Some(pos),
+            };
+            let (xy, size) = if let Some(xy) = Self::value_xy(value.get_ref()) {
+                (xy, None)
+            } else if let Some(t) = value.get_ref().as_table() {
+                if let Some(k) = t.keys().find(|k| *k != "at" && *k != "size") {
+                    return Err(syntax(format!(
+                        "{what}: unknown key `{k}`, expected `at` or `size`"
+                    )));
+                }
+                let xy = t
+                    .get("at")
+                    .and_then(Self::value_xy)
+                    .ok_or_else(|| syntax(format!("{what}: expected `at = [x, y]`")))?;
+                let size = match t.get("size") {
+                    None => None,
+                    Some(s) => {
+                        let s = s
+                            .as_float()
+                            .or_else(|| s.as_integer().map(|i| i as f64))
+                            .filter(|s| s.is_finite() && *s > 0.0)
+                            .ok_or_else(|| CaseError::InvalidValue {
+                                what: format!("{what}: size must be a positive length"),
+                                position: pos,
+                            })?;
+                        Some(unit.to_metres(s))
+                    }
+                };
+                (xy, size)
+            } else {
+                return Err(syntax(format!(
+                    "{what}: expected `[x, y]` or `{{ at = [x, y], size = s }}`"
+                )));
+            };
+            let position = self.coords(unit, xy, pos, &what, axi)?;
+            by_name.insert(name.get_ref().clone(), PointId(g.points.len() as u32));
+            g.points.push(GeometryPoint { position, size });
+        }
+
+        let lookup = |name: &str, pos: Position| -> Result<PointId, CaseError> {
+            by_name
+                .get(name)
+                .copied()
+                .ok_or_else(|| CaseError::UnknownName {
+                    kind: "point",
+                    name: name.to_string(),
+                    position: pos,
+                })
+        };
+        // A point given by name or as `[x, y]`.
+        let point_ref = |g: &mut Geometry, v: &Spanned<toml::Value>, what: &str| {
+            let pos = self.pos(v);
+            if let Some(name) = v.get_ref().as_str() {
+                return lookup(name, pos);
+            }
+            let xy = Self::value_xy(v.get_ref()).ok_or_else(|| CaseError::Syntax {
+                message: format!("{what}: expected a point name or `[x, y]`"),
+                position: Some(pos),
+            })?;
+            Ok(g.add_point(self.coords(unit, xy, pos, what, axi)?))
+        };
+        // A position given by point name or as `[x, y]` (arc and circle centres: not added
+        // as points).
+        let coord_ref = |g: &Geometry, v: &Spanned<toml::Value>, what: &str| {
+            let pos = self.pos(v);
+            if let Some(name) = v.get_ref().as_str() {
+                return lookup(name, pos).map(|id| g.points[id.index()].position);
+            }
+            let xy = Self::value_xy(v.get_ref()).ok_or_else(|| CaseError::Syntax {
+                message: format!("{what}: expected a point name or `[x, y]`"),
+                position: Some(pos),
+            })?;
+            self.coords(unit, xy, pos, what, false)
+        };
+        let finish = |g: &mut Geometry,
+                      positions: &mut Positions,
+                      ids: &[CurveId],
+                      name: &Option<Spanned<String>>,
+                      size: Option<f64>,
+                      pos: Position| {
+            for &c in ids {
+                if c.index() >= positions.curves.len() {
+                    // A new curve.
+                    if let Some(n) = name {
+                        g.name_curve(c, n.get_ref());
+                    }
+                    if let Some(s) = size {
+                        g.set_curve_size(c, s);
+                    }
+                    positions.curves.push(pos);
+                } else {
+                    // A side that coincides with an earlier segment is that segment: it
+                    // keeps its first name and takes the smaller size.
+                    let curve = &mut g.curves[c.index()];
+                    if curve.name.is_none() {
+                        curve.name = name.as_ref().map(|n| n.get_ref().clone());
+                    }
+                    if let Some(s) = size {
+                        curve.size = Some(curve.size.map_or(s, |old| old.min(s)));
+                    }
+                }
+            }
+        };
+
+        // Curves are added in file order across all kinds (the items of an array of tables
+        // are contiguous in the text, so the position of any of their keys orders them).
+        let mut items: Vec<(usize, CurveItem)> = Vec::new();
+        items.extend(raw.segments.iter().map(|s| {
+            (
+                s.from.span().start.min(s.to.span().start),
+                CurveItem::Segment(s),
+            )
+        }));
+        items.extend(raw.arcs.iter().map(|a| {
+            (
+                a.from.span().start.min(a.to.span().start),
+                CurveItem::Arc(a),
+            )
+        }));
+        items.extend(
+            raw.polylines
+                .iter()
+                .map(|p| (p.points.span().start, CurveItem::Polyline(p))),
+        );
+        items.extend(raw.rectangles.iter().map(|r| {
+            (
+                r.min.span().start.min(r.max.span().start),
+                CurveItem::Rectangle(r),
+            )
+        }));
+        items.extend(raw.circles.iter().map(|c| {
+            (
+                c.centre.span().start.min(c.radius.span().start),
+                CurveItem::Circle(c),
+            )
+        }));
+        items.sort_by_key(|(k, _)| *k);
+        for (_, item) in items {
+            match item {
+                CurveItem::Segment(s) => {
+                    let a = lookup(s.from.get_ref(), self.pos(&s.from))?;
+                    let b = lookup(s.to.get_ref(), self.pos(&s.to))?;
+                    let size = self.positive(unit, &s.size, "segment size")?;
+                    let c = g.add_segment(a, b);
+                    finish(g, positions, &[c], &s.name, size, self.pos(&s.from));
+                }
+                CurveItem::Arc(a) => {
+                    let from = lookup(a.from.get_ref(), self.pos(&a.from))?;
+                    let to = lookup(a.to.get_ref(), self.pos(&a.to))?;
+                    let centre = coord_ref(g, &a.centre, "arc centre")?;
+                    let size = self.positive(unit, &a.size, "arc size")?;
+                    // The mesher's arcs run counter-clockwise: a clockwise arc from A to B is the
+                    // counter-clockwise arc from B to A.
+                    let c = if a.clockwise {
+                        g.add_arc(to, from, centre)
+                    } else {
+                        g.add_arc(from, to, centre)
+                    };
+                    finish(g, positions, &[c], &a.name, size, self.pos(&a.from));
+                }
+                CurveItem::Polyline(p) => {
+                    let mut ids = Vec::with_capacity(p.points.get_ref().len());
+                    for v in p.points.get_ref() {
+                        ids.push(point_ref(g, v, "polyline point")?);
+                    }
+                    let min = if p.closed { 3 } else { 2 };
+                    if ids.len() < min {
+                        return Err(self.invalid(
+                            &p.points,
+                            format!(
+                                "a {} polyline needs at least {min} points, got {}",
+                                if p.closed { "closed" } else { "open" },
+                                ids.len()
+                            ),
+                        ));
+                    }
+                    let size = self.positive(unit, &p.size, "polyline size")?;
+                    let n = ids.len();
+                    let edges = if p.closed { n } else { n - 1 };
+                    let curves: Vec<CurveId> = (0..edges)
+                        .map(|k| {
+                            let (a, b) = (ids[k], ids[(k + 1) % n]);
+                            g.find_segment(a, b).unwrap_or_else(|| g.add_segment(a, b))
+                        })
+                        .collect();
+                    finish(g, positions, &curves, &p.name, size, self.pos(&p.points));
+                }
+                CurveItem::Rectangle(r) => {
+                    let lo = self.coords(
+                        unit,
+                        *r.min.get_ref(),
+                        self.pos(&r.min),
+                        "rectangle min",
+                        axi,
+                    )?;
+                    let hi = self.coords(
+                        unit,
+                        *r.max.get_ref(),
+                        self.pos(&r.max),
+                        "rectangle max",
+                        axi,
+                    )?;
+                    if !(hi.x > lo.x && hi.y > lo.y) {
+                        return Err(self.invalid(
+                            &r.max,
+                            format!(
+                                "rectangle max {:?} must lie above and right of min {:?}",
+                                r.max.get_ref(),
+                                r.min.get_ref()
+                            ),
+                        ));
+                    }
+                    let size = self.positive(unit, &r.size, "rectangle size")?;
+                    let curves = g.add_rectangle(lo, hi);
+                    finish(g, positions, &curves, &r.name, size, self.pos(&r.min));
+                }
+                CurveItem::Circle(c) => {
+                    let centre = coord_ref(g, &c.centre, "circle centre")?;
+                    let radius = self
+                        .positive(unit, &Some(c.radius.clone()), "circle radius")?
+                        .expect("given");
+                    if axi && centre.x - radius < 0.0 {
+                        return Err(self.invalid(
+                            &c.radius,
+                            "circle crosses the axis r = 0 in an axisymmetric case".into(),
+                        ));
+                    }
+                    let size = self.positive(unit, &c.size, "circle size")?;
+                    let curves = g.add_circle(centre, radius);
+                    finish(g, positions, &curves, &c.name, size, self.pos(&c.centre));
+                }
+            }
+        }
+
+        for p in &raw.curve_pairs {
+            let mut ids = [CurveId(0); 2];
+            for (k, n) in [&p.first, &p.second].into_iter().enumerate() {
+                let named: Vec<usize> = g
+                    .curves
+                    .iter()
+                    .enumerate()
+                    .filter(|(_, c)| c.name.as_ref() == Some(n.get_ref()))
+                    .map(|(i, _)| i)
+                    .collect();
+                match named.as_slice() {
+                    [] => {
+                        return Err(CaseError::UnknownName {
+                            kind: "curve",
+                            name: n.get_ref().clone(),
+                            position: self.pos(n),
+                        })
+                    }
+                    [i] => ids[k] = CurveId(*i as u32),
+                    many => {
+                        return Err(self.invalid(
+                            n,
+                            format!(
+                                "a curve pair needs names of single curves: `{}` names {} curves",
+                                n.get_ref(),
+                                many.len()
+                            ),
+                        ))
+                    }
+                }
+            }
+            if ids[0] == ids[1] {
+                return Err(self.invalid(
+                    &p.second,
+                    format!("curve `{}` cannot be paired with itself", p.first.get_ref()),
+                ));
+            }
+            if let Some(q) = g.curve_pairs.iter().find(|q| {
+                [q.first, q.second]
+                    .iter()
+                    .any(|c| *c == ids[0] || *c == ids[1])
+            }) {
+                let _ = q;
+                return Err(CaseError::DuplicateName {
+                    kind: "curve in two curve pairs",
+                    name: format!("{} / {}", p.first.get_ref(), p.second.get_ref()),
+                    position: self.pos(&p.first),
+                });
+            }
+            g.add_curve_pair(ids[0], ids[1]);
+            positions.curve_pairs.push(self.pos(&p.first));
+        }
+        Ok(())
+    }
+}
+
+/// Writes a geometry as a case file in metres (`unit = "m"`): every point as a named point
+/// `p0`, `p1`, ..., every curve as a segment or counter-clockwise arc, the regions, curve
+/// pairs (by curve name), rigid groups and mesh settings. Reading the text back with
+/// [`Case::from_toml_str`] and calling [`Case::geometry`] gives a geometry equal to
+/// `geometry` (numbers are written with the shortest decimal form that reads back exactly).
+///
+/// # Errors
+/// [`CaseError::NotWritable`] for a non-finite number or a paired curve that has no name
+/// unique among the curves.
+pub fn geometry_to_toml(geometry: &Geometry) -> Result<String, CaseError> {
+    use std::fmt::Write as _;
+    let not = |what: String| CaseError::NotWritable { what };
+    let num = |v: f64, what: &dyn Fn() -> String| -> Result<String, CaseError> {
+        if v.is_finite() {
+            Ok(format!("{v:?}"))
+        } else {
+            Err(not(format!("{} is {v}", what())))
+        }
+    };
+    let quote = |s: &str| toml::Value::String(s.to_string()).to_string();
+    let xy = |p: Point2, what: &dyn Fn() -> String| -> Result<String, CaseError> {
+        Ok(format!("[{}, {}]", num(p.x, what)?, num(p.y, what)?))
+    };
+    let mut o = String::new();
+    o.push_str(
+        "# Written by coercive::case::geometry_to_toml. Lengths in metres.\nunit = \"m\"\n\n",
+    );
+
+    let s = &geometry.settings;
+    o.push_str("[mesh]\n");
+    if let Some(v) = s.max_size {
+        let _ = writeln!(o, "max_size = {}", num(v, &|| "max_size".into())?);
+    }
+    let _ = writeln!(o, "growth = {}", num(s.growth, &|| "growth".into())?);
+    let _ = writeln!(
+        o,
+        "min_angle = {}",
+        num(s.min_angle_deg, &|| "min_angle".into())?
+    );
+    let _ = writeln!(o, "max_triangles = {}", s.max_triangles);
+    if let Some(v) = s.chord_tolerance {
+        let _ = writeln!(
+            o,
+            "chord_tolerance = {}",
+            num(v, &|| "chord_tolerance".into())?
+        );
+    }
+    let _ = writeln!(
+        o,
+        "elements_across_gap = {}",
+        num(s.elements_across_gap, &|| "elements_across_gap".into())?
+    );
+    let _ = writeln!(
+        o,
+        "snap_tolerance = {}",
+        num(s.snap_tolerance, &|| "snap_tolerance".into())?
+    );
+
+    o.push_str("\n[geometry.points]\n");
+    for (i, p) in geometry.points.iter().enumerate() {
+        let what = || format!("point {i}");
+        match p.size {
+            None => {
+                let _ = writeln!(o, "p{i} = {}", xy(p.position, &what)?);
+            }
+            Some(sz) => {
+                let _ = writeln!(
+                    o,
+                    "p{i} = {{ at = {}, size = {} }}",
+                    xy(p.position, &what)?,
+                    num(sz, &what)?
+                );
+            }
+        }
+    }
+    if !geometry.rigid_groups.is_empty() {
+        o.push_str("\n[geometry.rigid_groups]\n");
+        for grp in &geometry.rigid_groups {
+            let members: Vec<String> = grp.regions.iter().map(|r| quote(r)).collect();
+            let _ = writeln!(o, "{} = [{}]", quote(&grp.name), members.join(", "));
+        }
+    }
+    let n_points = geometry.points.len();
+    let point_name = |id: PointId, c: usize| -> Result<String, CaseError> {
+        if id.index() < n_points {
+            Ok(format!("\"p{}\"", id.0))
+        } else {
+            Err(not(format!("curve {c} refers to missing point {}", id.0)))
+        }
+    };
+    for (i, c) in geometry.curves.iter().enumerate() {
+        match c.shape {
+            CurveShape::Segment { start, end } => {
+                let _ = writeln!(
+                    o,
+                    "\n[[geometry.segments]]\nfrom = {}\nto = {}",
+                    point_name(start, i)?,
+                    point_name(end, i)?
+                );
+            }
+            CurveShape::Arc { start, end, centre } => {
+                let _ = writeln!(
+                    o,
+                    "\n[[geometry.arcs]]\nfrom = {}\nto = {}\ncentre = {}",
+                    point_name(start, i)?,
+                    point_name(end, i)?,
+                    xy(centre, &|| format!("centre of curve {i}"))?
+                );
+            }
+        }
+        if let Some(n) = &c.name {
+            let _ = writeln!(o, "name = {}", quote(n));
+        }
+        if let Some(sz) = c.size {
+            let _ = writeln!(o, "size = {}", num(sz, &|| format!("size of curve {i}"))?);
+        }
+    }
+    for (k, pair) in geometry.curve_pairs.iter().enumerate() {
+        let name = |c: CurveId| -> Result<String, CaseError> {
+            let n = geometry
+                .curves
+                .get(c.index())
+                .and_then(|cv| cv.name.clone())
+                .ok_or_else(|| not(format!("curve pair {k}: curve {} has no name", c.0)))?;
+            if geometry
+                .curves
+                .iter()
+                .filter(|cv| cv.name.as_ref() == Some(&n))
+                .count()
+                > 1
+            {
+                return Err(not(format!(
+                    "curve pair {k}: curve name `{n}` is shared by several curves"
+                )));
+            }
+            Ok(quote(&n))
+        };
+        let _ = writeln!(
+            o,
+            "\n[[geometry.curve_pairs]]\nfirst = {}\nsecond = {}",
+            name(pair.first)?,
+            name(pair.second)?
+        );
+    }
+    for r in &geometry.regions {
+        let what = || format!("region `{}`", r.name);
+        let _ = writeln!(
+            o,
+            "\n[regions.{}]\nat = {}",
+            quote(&r.name),
+            xy(r.seed, &what)?
+        );
+        if r.hole {
+            o.push_str("hole = true\n");
+        }
+        if let Some(sz) = r.size {
+            let _ = writeln!(o, "max_size = {}", num(sz, &what)?);
+        }
+    }
+    Ok(o)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const SMALL: &str = r#"
+unit = "mm"
+title = "two squares"
+
+[mesh]
+max_size = 2.5
+growth = 0.25
+
+[geometry.points]
+a = [0, 0]
+b = [10, 0]
+c = { at = [10, 10], size = 0.5 }
+d = [0, 10]
+o = [5, 5]
+
+[[geometry.polylines]]
+points = ["a", "b", "c", "d"]
+closed = true
+name = "outer"
+
+[[geometry.rectangles]]
+min = [2, 2]
+max = [4, 4]
+name = "magnet_edge"
+size = 0.25
+
+[[geometry.circles]]
+centre = "o"
+radius = 1.5
+name = "hole_edge"
+
+[regions.air]
+at = [1, 1]
+material = "air"
+
+[regions.magnet]
+at = [3, 3]
+max_size = 0.5
+material = "N42"
+
+[regions.hole]
+at = [5, 5]
+hole = true
+
+[geometry.rigid_groups]
+mover = ["magnet"]
+"#;
+
+    fn expect_position(err: &CaseError) -> Position {
+        match err {
+            CaseError::Syntax {
+                position: Some(p), ..
+            } => *p,
+            CaseError::UnknownName { position, .. }
+            | CaseError::DuplicateName { position, .. }
+            | CaseError::InvalidValue { position, .. } => *position,
+            other => panic!("no position in {other:?}"),
+        }
+    }
+
+    #[test]
+    fn millimetres_convert_exactly_to_metres() {
+        let case = Case::from_toml_str(SMALL).unwrap();
+        assert_eq!(case.unit(), LengthUnit::Millimetre);
+        let g = case.geometry().unwrap();
+        // 10 mm is the double nearest to 0.01 m; 1.5 mm radius gives the point at 6.5 mm.
+        assert_eq!(g.points[1].position, Point2::new(0.01, 0.0));
+        assert_eq!(g.points[2].size, Some(0.0005));
+        assert_eq!(g.settings.max_size, Some(0.0025));
+        assert_eq!(g.settings.growth, 0.25);
+        // The circle's points are placed by the mesher's builder in metres (centre + radius).
+        assert!(g
+            .points
+            .iter()
+            .any(|p| p.position == Point2::new(0.005 + 0.0015, 0.005)));
+        assert_eq!(g.regions[1].size, Some(0.0005));
+        // Other units: 12.5 cm, 12.5 um, 1 in = 25.4 mm (exact by definition).
+        assert_eq!(LengthUnit::Centimetre.to_metres(12.5), 0.125);
+        assert_eq!(LengthUnit::Micrometre.to_metres(12.5), 0.0000125);
+        assert_eq!(LengthUnit::Inch.to_metres(1.0), 0.0254);
+        assert_eq!(LengthUnit::from_symbol("um"), Some(LengthUnit::Micrometre));
+    }
+
+    #[test]
+    fn geometry_parts_are_built_in_file_order() {
+        let case = Case::from_toml_str(SMALL).unwrap();
+        let g = case.geometry().unwrap();
+        // 4 polyline segments, 4 rectangle sides, 4 quarter arcs.
+        assert_eq!(g.curves.len(), 12);
+        assert_eq!(
+            g.curves
+                .iter()
+                .filter(|c| c.name.as_deref() == Some("outer"))
+                .count(),
+            4
+        );
+        assert!(g.curves[4..8].iter().all(|c| c.size == Some(0.00025)));
+        assert!(matches!(g.curves[8].shape, CurveShape::Arc { .. }));
+        assert_eq!(case.region_names(), vec!["air", "magnet", "hole"]);
+        assert!(g.regions[2].hole);
+        assert_eq!(case.region_material("magnet"), Some("N42"));
+        assert_eq!(case.region_material("hole"), None);
+        assert_eq!(g.rigid_groups.len(), 1);
+        assert_eq!(g.rigid_groups[0].regions, vec!["magnet".to_string()]);
+        assert_eq!(case.title(), Some("two squares"));
+        assert_eq!(case.formulation(), CaseFormulation::Planar);
+    }
+
+    #[test]
+    fn unknown_key_is_reported_with_line_and_column() {
+        let text = SMALL.replace("max_size = 0.5\n", "max_size = 0.5\ncolour = \"red\"\n");
+        let err = Case::from_toml_str(&text).unwrap_err();
+        let line = text.lines().position(|l| l.starts_with("colour")).unwrap() + 1;
+        assert_eq!(expect_position(&err), Position { line, column: 1 });
+        let msg = err.to_string();
+        assert!(msg.contains("colour"), "{msg}");
+        assert!(msg.contains(&format!("line {line}, column 1")), "{msg}");
+        // At the top level as well.
+        let err = Case::from_toml_str("unit = \"mm\"\nfoo = 1\n").unwrap_err();
+        assert_eq!(expect_position(&err), Position { line: 2, column: 1 });
+    }
+
+    #[test]
+    fn unknown_point_name_is_reported_with_line_and_column() {
+        let text = SMALL.replace(
+            r#"points = ["a", "b", "c", "d"]"#,
+            r#"points = ["a", "b", "cc", "d"]"#,
+        );
+        let err = Case::from_toml_str(&text).unwrap_err();
+        let line = text.lines().position(|l| l.contains("\"cc\"")).unwrap() + 1;
+        let column = text.lines().nth(line - 1).unwrap().find("\"cc\"").unwrap() + 1;
+        assert_eq!(
+            err,
+            CaseError::UnknownName {
+                kind: "point",
+                name: "cc".into(),
+                position: Position { line, column }
+            }
+        );
+        assert!(err.to_string().contains("unknown point `cc`"));
+        // In a segment's `to`.
+        let err = Case::from_toml_str(
+            "unit = \"m\"\n[geometry.points]\na = [0, 0]\n[[geometry.segments]]\nfrom = \"a\"\nto = \"zz\"\n",
+        )
+        .unwrap_err();
+        assert_eq!(
+            err,
+            CaseError::UnknownName {
+                kind: "point",
+                name: "zz".into(),
+                position: Position { line: 6, column: 6 }
+            }
+        );
+    }
+
+    #[test]
+    fn unknown_curve_and_region_names_are_reported() {
+        let text = format!(
+            "{SMALL}\n[[geometry.curve_pairs]]\nfirst = \"nope\"\nsecond = \"hole_edge\"\n"
+        );
+        let err = Case::from_toml_str(&text).unwrap_err();
+        assert!(
+            matches!(&err, CaseError::UnknownName { kind: "curve", name, .. } if name == "nope"),
+            "{err:?}"
+        );
+        assert_eq!(expect_position(&err).line, text.lines().count() - 1);
+        // A curve pair needs single curves: `outer` names four.
+        let text = format!(
+            "{SMALL}\n[[geometry.curve_pairs]]\nfirst = \"outer\"\nsecond = \"magnet_edge\"\n"
+        );
+        let err = Case::from_toml_str(&text).unwrap_err();
+        assert!(err.to_string().contains("`outer` names 4 curves"), "{err}");
+        let text = SMALL.replace(r#"mover = ["magnet"]"#, r#"mover = ["magnet", "plate"]"#);
+        let err = Case::from_toml_str(&text).unwrap_err();
+        assert!(
+            matches!(&err, CaseError::UnknownName { kind: "region", name, .. } if name == "plate"),
+            "{err:?}"
+        );
+    }
+
+    #[test]
+    fn duplicate_names_are_rejected_with_position() {
+        // A point defined twice: TOML itself forbids the duplicate key.
+        let text = SMALL.replace("d = [0, 10]\n", "d = [0, 10]\nb = [1, 1]\n");
+        let err = Case::from_toml_str(&text).unwrap_err();
+        let line = text.lines().position(|l| l == "b = [1, 1]").unwrap() + 1;
+        assert_eq!(expect_position(&err).line, line);
+        assert!(err.to_string().contains("duplicate"), "{err}");
+        // A region defined twice.
+        let text = format!("{SMALL}\n[regions.air]\nat = [9, 9]\n");
+        let err = Case::from_toml_str(&text).unwrap_err();
+        assert!(
+            matches!(
+                err,
+                CaseError::Syntax {
+                    position: Some(_),
+                    ..
+                }
+            ),
+            "{err:?}"
+        );
+        // A region listed twice in a rigid group.
+        let text = SMALL.replace(r#"mover = ["magnet"]"#, r#"mover = ["magnet", "magnet"]"#);
+        let err = Case::from_toml_str(&text).unwrap_err();
+        assert!(matches!(err, CaseError::DuplicateName { .. }), "{err:?}");
+    }
+
+    #[test]
+    fn bad_values_are_rejected_with_position() {
+        for (from, to, needle) in [
+            ("unit = \"mm\"", "unit = \"furlong\"", "unknown length unit"),
+            (
+                "radius = 1.5",
+                "radius = -1.5",
+                "circle radius must be a positive length",
+            ),
+            (
+                "max_size = 2.5",
+                "max_size = 0",
+                "mesh max_size must be a positive length",
+            ),
+            ("a = [0, 0]", "a = [nan, 0]", "coordinates must be finite"),
+            ("at = [1, 1]", "at = [1, inf]", "coordinates must be finite"),
+            (
+                "growth = 0.25",
+                "growth = -1",
+                "growth must be a positive number",
+            ),
+            (
+                "min = [2, 2]",
+                "min = [5, 2]",
+                "must lie above and right of min",
+            ),
+            (
+                "at = [5, 5]\nhole = true",
+                "at = [5, 5]\nhole = true\nmaterial = \"x\"",
+                "is a hole",
+            ),
+        ] {
+            let text = SMALL.replacen(from, to, 1);
+            assert_ne!(text, SMALL, "{from}");
+            let err = Case::from_toml_str(&text).unwrap_err();
+            assert!(err.to_string().contains(needle), "{from}: {err}");
+            expect_position(&err);
+        }
+        // Axisymmetric cases refuse negative radii.
+        let text = SMALL
+            .replace("title = \"two squares\"", "formulation = \"axisymmetric\"")
+            .replace("a = [0, 0]", "a = [-1, 0]");
+        let err = Case::from_toml_str(&text).unwrap_err();
+        assert!(err.to_string().contains("negative radius"), "{err}");
+        // Not TOML at all.
+        let err = Case::from_toml_str("unit = \"mm\"\n[mesh\n").unwrap_err();
+        assert_eq!(expect_position(&err).line, 2);
+        // Missing unit.
+        let err = Case::from_toml_str("[mesh]\nmax_size = 1\n").unwrap_err();
+        assert!(err.to_string().contains("unit"), "{err}");
+    }
+
+    #[test]
+    fn clockwise_arc_is_stored_counter_clockwise() {
+        let text = "unit = \"m\"\n[geometry.points]\na = [1, 0]\nb = [0, 1]\n[[geometry.arcs]]\nfrom = \"b\"\nto = \"a\"\ncentre = [0, 0]\nclockwise = true\n";
+        let g = Case::from_toml_str(text).unwrap().geometry().unwrap();
+        assert_eq!(
+            g.curves[0].shape,
+            CurveShape::Arc {
+                start: PointId(0),
+                end: PointId(1),
+                centre: Point2::new(0.0, 0.0)
+            }
+        );
+    }
+
+    #[test]
+    fn geometry_round_trips_through_toml() {
+        let mut g = Case::from_toml_str(SMALL).unwrap().geometry().unwrap();
+        // Add a curve pair, awkward numbers and names needing quotes.
+        let a = g.add_point(Point2::new(0.1 + 0.2, -1e-7));
+        let b = g.add_point_with_size(Point2::new(1.0 / 3.0, 2.0e5), 1e-9);
+        let c1 = g.add_segment(a, b);
+        let c2 = g.add_arc(b, a, Point2::new(std::f64::consts::PI, 0.0));
+        g.name_curve(c1, "left \"edge\"");
+        g.name_curve(c2, "right.edge");
+        g.add_curve_pair(c1, c2);
+        g.settings.chord_tolerance = Some(1.234e-6);
+        g.settings.max_triangles = 123_456;
+        let text = geometry_to_toml(&g).unwrap();
+        let back = Case::from_toml_str(&text)
+            .unwrap_or_else(|e| panic!("{e}\n{text}"))
+            .geometry()
+            .unwrap();
+        assert_eq!(back, g);
+        // A paired curve without a name cannot be written.
+        let mut h = g.clone();
+        h.curves[c1.index()].name = None;
+        assert!(matches!(
+            geometry_to_toml(&h),
+            Err(CaseError::NotWritable { .. })
+        ));
+        h.curves[c1.index()].name = Some("x".into());
+        h.points[0].position.x = f64::NAN;
+        assert!(matches!(
+            geometry_to_toml(&h),
+            Err(CaseError::NotWritable { .. })
+        ));
+    }
+
+    #[test]
+    fn later_sections_are_kept_raw() {
+        let text = format!("{SMALL}\n[[material]]\nname = \"N42\"\nremanence = 1.3\n\n[[winding]]\nname = \"coil\"\nturns = 200\n");
+        let case = Case::from_toml_str(&text).unwrap();
+        assert_eq!(case.section("material").len(), 1);
+        assert_eq!(case.section("winding")[0]["turns"].as_integer(), Some(200));
+        assert!(case.section("boundary").is_empty());
+        assert!(case.section("unknown").is_empty());
+    }
+
+    #[test]
+    fn position_counts_lines_and_characters() {
+        let s = "ab\ncµd\n";
+        assert_eq!(Position::of_offset(s, 0), Position { line: 1, column: 1 });
+        assert_eq!(Position::of_offset(s, 3), Position { line: 2, column: 1 });
+        // 'd' is after a two-byte character: column 3.
+        assert_eq!(Position::of_offset(s, 6), Position { line: 2, column: 3 });
+        assert_eq!(Position::of_offset(s, 100), Position { line: 3, column: 1 });
+    }
+}
