@@ -1,1 +1,195 @@
-fn main() {}
+//! The `coercive` command-line runner.
+//!
+//! `coercive mesh CASE.toml [--svg FILE] [--json]` meshes a case's geometry and prints the
+//! quality report. Further subcommands (solving, studies) join the [`Command`] enum.
+
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use std::time::Instant;
+
+use clap::{Args, Parser, Subcommand};
+use coercive::case::{Case, CaseError};
+use coercive::mesh::svg::{mesh_to_svg, SvgOptions};
+use coercive::mesh::{Mesh, QualityReport};
+
+/// 2D finite-element magnetostatics for switchable permanent-magnet devices.
+#[derive(Parser)]
+#[command(name = "coercive", version, about)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+/// The subcommands.
+#[derive(Subcommand)]
+enum Command {
+    /// Mesh a case's geometry and print the mesh quality report.
+    Mesh(MeshArgs),
+}
+
+/// Arguments of `coercive mesh`.
+#[derive(Args)]
+struct MeshArgs {
+    /// The case file (TOML).
+    case: PathBuf,
+    /// Write an SVG drawing of the mesh to this file.
+    #[arg(long, value_name = "FILE")]
+    svg: Option<PathBuf>,
+    /// Print the report as JSON (lengths in m, areas in m^2, angles in degrees).
+    #[arg(long)]
+    json: bool,
+    /// Override the case's `[mesh] max_size`, in the case file's length unit.
+    #[arg(long, value_name = "SIZE")]
+    max_size: Option<f64>,
+    /// Override the case's `[mesh] max_triangles` (the guard against runaway meshes).
+    #[arg(long, value_name = "N")]
+    max_triangles: Option<usize>,
+    /// Leave triangle edges out of the SVG (region fills, outlines and curves only).
+    #[arg(long)]
+    no_edges: bool,
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let result = match cli.command {
+        Command::Mesh(args) => run_mesh(&args),
+    };
+    match result {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(message) => {
+            eprintln!("error: {message}");
+            ExitCode::FAILURE
+        }
+    }
+}
+
+fn run_mesh(args: &MeshArgs) -> Result<(), String> {
+    let case = Case::from_file(&args.case).map_err(|e| match e {
+        CaseError::Io { .. } => e.to_string(),
+        _ => format!("{}: {e}", args.case.display()),
+    })?;
+    let mut geometry = case
+        .geometry()
+        .map_err(|e| format!("{}: {e}", args.case.display()))?;
+    if let Some(size) = args.max_size {
+        if !(size.is_finite() && size > 0.0) {
+            return Err(format!(
+                "--max-size must be a positive length, got {size} {}",
+                case.unit().symbol()
+            ));
+        }
+        geometry.settings.max_size = Some(case.unit().to_metres(size));
+    }
+    if let Some(n) = args.max_triangles {
+        geometry.settings.max_triangles = n;
+    }
+    let start = Instant::now();
+    let (mesh, report) = case
+        .mesh_with_report(&geometry)
+        .map_err(|e| format!("{}: {e}", args.case.display()))?;
+    let seconds = start.elapsed().as_secs_f64();
+
+    if let Some(path) = &args.svg {
+        let title = case
+            .title()
+            .map_or_else(|| args.case.display().to_string(), str::to_string);
+        let svg = mesh_to_svg(
+            &mesh,
+            &SvgOptions {
+                show_edges: !args.no_edges,
+                title: Some(title),
+                ..SvgOptions::default()
+            },
+        );
+        std::fs::write(path, svg).map_err(|e| format!("cannot write {}: {e}", path.display()))?;
+    }
+
+    if args.json {
+        println!("{}", json_report(&args.case, &mesh, &report, seconds));
+    } else {
+        print_report(&args.case, &case, &report, seconds, args.svg.as_deref());
+    }
+    Ok(())
+}
+
+/// The JSON report: the quality report's fields (SI units, angles in degrees) plus
+/// `region_triangles` (name to count), `case` and `mesh_seconds`.
+fn json_report(path: &Path, mesh: &Mesh, report: &QualityReport, seconds: f64) -> String {
+    let mut value = serde_json::to_value(report).expect("a quality report serialises");
+    if let Some(obj) = value.as_object_mut() {
+        let counts: serde_json::Map<String, serde_json::Value> = report
+            .regions
+            .iter()
+            .map(|r| (r.name.clone(), r.triangles.into()))
+            .collect();
+        obj.insert("region_triangles".into(), counts.into());
+        obj.insert("case".into(), path.display().to_string().into());
+        obj.insert("mesh_seconds".into(), seconds.into());
+        obj.insert("curves".into(), mesh.curves().len().into());
+    }
+    serde_json::to_string_pretty(&value).expect("JSON values serialise")
+}
+
+fn print_report(
+    path: &Path,
+    case: &Case,
+    report: &QualityReport,
+    seconds: f64,
+    svg: Option<&Path>,
+) {
+    match case.title() {
+        Some(t) => println!("case: {} ({t})", path.display()),
+        None => println!("case: {}", path.display()),
+    }
+    println!(
+        "mesh: {} triangles, {} nodes in {:.3} s ({:.0} triangles/s)",
+        report.triangles,
+        report.nodes,
+        seconds,
+        report.triangles as f64 / seconds.max(1e-9)
+    );
+    println!(
+        "angles: min {:.2} deg, max {:.2} deg (requested min {:.1} deg; {} triangles below it)",
+        report.min_angle_deg,
+        report.max_angle_deg,
+        report.requested_min_angle_deg,
+        report.triangles_below_min_angle
+    );
+    println!(
+        "size: longest edge at most {:.3} x the local target size",
+        report.max_size_ratio
+    );
+    let unit = case.unit();
+    let width = report
+        .regions
+        .iter()
+        .map(|r| r.name.len())
+        .max()
+        .unwrap_or(6)
+        .max(6);
+    println!("regions:");
+    for r in &report.regions {
+        let area_unit = unit.from_metres(unit.from_metres(r.area));
+        println!(
+            "  {:<width$}  {:>9} triangles  area {:.6e} m^2 ({:.4} {}^2)  min angle {:.2} deg",
+            r.name,
+            r.triangles,
+            r.area,
+            area_unit,
+            unit.symbol(),
+            r.min_angle_deg
+        );
+    }
+    for a in &report.small_input_angles {
+        println!(
+            "input angle of {:.2} deg at ({:.6}, {:.6}) {} is kept (smaller than the requested minimum)",
+            a.angle_deg,
+            unit.from_metres(a.at.x),
+            unit.from_metres(a.at.y),
+            unit.symbol()
+        );
+    }
+    if let Some(svg) = svg {
+        println!("drawing: {}", svg.display());
+    }
+}
