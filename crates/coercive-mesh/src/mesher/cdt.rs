@@ -96,11 +96,18 @@ pub(crate) fn build(
 pub(crate) struct Seed<'a> {
     pub name: &'a str,
     pub at: Point2,
+    /// Inactive seeds are skipped.
+    pub active: bool,
 }
 
 /// Labels faces by flood fill from every seed (label k + 1 for seed k) without crossing
 /// constraint edges; checks seeds and enclosed areas without a seed.
-pub(crate) fn label(cdt: &mut Cdt, seeds: &[Seed], tol: f64) -> Result<(), MeshError> {
+pub(crate) fn label(
+    cdt: &mut Cdt,
+    seeds: &[Seed],
+    tol: f64,
+    allow_unseeded: bool,
+) -> Result<(), MeshError> {
     let frame = cdt.num_vertices() - 4;
     let outside = |cdt: &Cdt, f: FixedFaceHandle<InnerTag>| {
         cdt.face(f)
@@ -113,6 +120,9 @@ pub(crate) fn label(cdt: &mut Cdt, seeds: &[Seed], tol: f64) -> Result<(), MeshE
     }
     let mut stack = Vec::new();
     for (k, s) in seeds.iter().enumerate() {
+        if !s.active {
+            continue;
+        }
         let not_closed = || MeshError::RegionNotClosed {
             region: s.name.to_string(),
             x: s.at.x,
@@ -186,6 +196,9 @@ pub(crate) fn label(cdt: &mut Cdt, seeds: &[Seed], tol: f64) -> Result<(), MeshE
                 stack.push(n);
             }
         }
+    }
+    if allow_unseeded {
+        return Ok(());
     }
     // Enclosed areas without a seed: unlabelled components not reaching the hull.
     let nf = cdt.num_all_faces();
@@ -485,19 +498,68 @@ impl<'a> Refiner<'a> {
                 if !self.is_fixed_edge(e) {
                     self.split_segment(e)?;
                     self.faces.push_back(f);
+                } else {
+                    self.insert_beside_fixed(e, centroid, lab, hint)?;
                 }
             }
             return Ok(());
         }
         let g = target_face.unwrap_or(f);
-        // Would the circumcentre encroach a constraint edge near it? Then split that edge.
+        // Would the circumcentre encroach a constraint edge near it? Then split that edge
+        // (or, for a fixed edge, insert a point beside it instead).
         if let Some(e) = self.encroached_by(g, c) {
-            self.split_segment(e)?;
-            self.faces.push_back(f);
+            if self.is_fixed_edge(e) {
+                self.insert_beside_fixed(e, centroid, lab, hint)?;
+            } else {
+                self.split_segment(e)?;
+                self.faces.push_back(f);
+            }
             return Ok(());
         }
         self.insert_interior(c, hint, lab)?;
         Ok(())
+    }
+
+    /// A bad triangle near a fixed edge `e` (never split) whose circumcentre would encroach
+    /// it: insert the apex of the equilateral triangle on `e`, on the side of `towards`, if
+    /// that point lies in the same region and encroaches no curve edge; otherwise leave the
+    /// triangle as it is.
+    fn insert_beside_fixed(
+        &mut self,
+        e: FixedUndirectedEdgeHandle,
+        towards: Point2,
+        lab: u32,
+        hint: FixedVertexHandle,
+    ) -> Result<(), MeshError> {
+        let [a, b] = self.cdt.undirected_edge(e).positions().map(pt);
+        let (dx, dy) = (b.x - a.x, b.y - a.y);
+        let mid = Point2::new(0.5 * (a.x + b.x), 0.5 * (a.y + b.y));
+        let side = if cross(a, b, towards) > 0.0 {
+            1.0
+        } else {
+            -1.0
+        };
+        let k = side * 0.5 * 3f64.sqrt();
+        let q = Point2::new(mid.x - k * dy, mid.y + k * dx);
+        let g = match self.cdt.locate_with_hint(sp(q), hint) {
+            PositionInTriangulation::OnFace(g) => g,
+            _ => return Ok(()),
+        };
+        if *self.cdt.face(g).data() != lab || self.encroached_by(g, q).is_some() {
+            return Ok(());
+        }
+        // Not too close to an existing vertex of the face it falls in.
+        let near = self
+            .cdt
+            .face(g)
+            .vertices()
+            .iter()
+            .map(|v| pt(v.position()).distance(q))
+            .fold(f64::INFINITY, f64::min);
+        if near < 0.5 * a.distance(b) {
+            return Ok(());
+        }
+        self.insert_interior(q, hint, lab)
     }
 
     /// True when `u` and `v` lie on two different pieces that share a break point.
@@ -540,7 +602,7 @@ impl<'a> Refiner<'a> {
         it.ok().flatten()
     }
 
-    /// A splittable constraint edge of face `g` or of its neighbours whose diametral circle
+    /// A constraint edge of face `g` or of its neighbours whose diametral circle
     /// contains `c`.
     fn encroached_by(
         &self,
@@ -552,7 +614,7 @@ impl<'a> Refiner<'a> {
             let ue = e.fix().as_undirected();
             if self.cdt.is_constraint_edge(ue) {
                 let [a, b] = e.positions();
-                if in_diametral(pt(a), pt(b), c) && !self.is_fixed_edge(ue) {
+                if in_diametral(pt(a), pt(b), c) {
                     return Some(ue);
                 }
             } else if let Some(n) = e.rev().face().as_inner() {
@@ -560,7 +622,7 @@ impl<'a> Refiner<'a> {
                     let ue2 = e2.fix().as_undirected();
                     if ue2 != ue && self.cdt.is_constraint_edge(ue2) {
                         let [a, b] = e2.positions();
-                        if in_diametral(pt(a), pt(b), c) && !self.is_fixed_edge(ue2) {
+                        if in_diametral(pt(a), pt(b), c) {
                             return Some(ue2);
                         }
                     }

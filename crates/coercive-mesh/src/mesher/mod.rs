@@ -35,10 +35,11 @@ use size::SizeField;
 pub(crate) fn mesh_geometry(g: &Geometry) -> Result<(Mesh, QualityReport), MeshError> {
     let stage = Staged::new(g)?;
     let fine = stage.triangulate(&[])?;
-    Ok(stage.output(g, fine, &[]))
+    Ok(stage.output(g, fine, None))
 }
 
 /// Everything known after the coarse stage.
+#[derive(Clone)]
 pub(crate) struct Staged {
     pub prep: Prepared,
     /// Per piece: labels on its left (a -> b) and right.
@@ -65,6 +66,37 @@ pub(crate) struct Staged {
 pub(crate) struct Fine {
     pub cdt: Cdt,
     pub vpiece: Vec<u32>,
+    /// Per break point: its vertex index (NONE if excluded).
+    pub point_index: Vec<u32>,
+    /// First vertex index of every extra chain.
+    pub extra_start: Vec<usize>,
+}
+
+/// The kept part of a rigid-group mesh, numbered first in the output.
+pub(crate) struct RigidPart<'a> {
+    /// Group nodes (m), already moved.
+    pub verts: &'a [Point2],
+    /// Group triangles (indices into `verts`).
+    pub tris: &'a [[u32; 3]],
+    /// Region of every group triangle.
+    pub tri_regions: &'a [RegionId],
+    /// (triangulation vertex of an outline chain, group node).
+    pub cdt_to_group: Vec<(u32, u32)>,
+    /// Per piece: group node ids from a to b, for pieces owned by a group.
+    pub piece_nodes: &'a [Option<Vec<u32>>],
+}
+
+/// Which part of the geometry to triangulate (rigid groups re-mesh only the rest).
+pub(crate) struct Rest<'a> {
+    /// Extra closed chains of fixed edges (moved group outlines).
+    pub extra: &'a [Vec<Point2>],
+    /// Break points to leave out.
+    pub exclude_point: Option<&'a [bool]>,
+    /// Pieces to leave out.
+    pub skip_piece: Option<&'a [bool]>,
+    /// Seeds to use (others ignored); `Some` also allows enclosed areas without a seed
+    /// (the moved groups), which stay unmeshed.
+    pub active_seed: Option<&'a [bool]>,
 }
 
 impl Staged {
@@ -86,9 +118,13 @@ impl Staged {
             g.regions.iter().map(|r| (r.name.clone(), r.seed)).collect();
         let seed_refs: Vec<Seed> = seeds
             .iter()
-            .map(|(n, p)| Seed { name: n, at: *p })
+            .map(|(n, p)| Seed {
+                name: n,
+                at: *p,
+                active: true,
+            })
             .collect();
-        cdt::label(&mut coarse, &seed_refs, prep.tol)?;
+        cdt::label(&mut coarse, &seed_refs, prep.tol, false)?;
         let nl = g.regions.len() + 1;
         let mut meshed = vec![false; nl];
         let mut cap = vec![f64::INFINITY; nl];
@@ -337,19 +373,45 @@ impl Staged {
         Ok(())
     }
 
-    /// Builds and refines the fine triangulation. `extra` are extra fixed chains (closed
-    /// polylines of points, used for rigid groups), given with labels that are not meshed.
+    /// Builds and refines the fine triangulation of the whole geometry.
     pub(crate) fn triangulate(&self, extra: &[Vec<Point2>]) -> Result<Fine, MeshError> {
+        self.triangulate_with(&Rest {
+            extra,
+            exclude_point: None,
+            skip_piece: None,
+            active_seed: None,
+        })
+    }
+
+    /// Builds and refines the fine triangulation of part of the geometry (see [`Rest`]).
+    pub(crate) fn triangulate_with(&self, rest: &Rest) -> Result<Fine, MeshError> {
         let prep = &self.prep;
-        let n_break = prep.points.len();
-        let mut verts = prep.points.clone();
+        // Break points kept, renumbered in order.
+        let mut point_index = vec![NONE; prep.points.len()];
+        let mut verts = Vec::with_capacity(prep.points.len());
+        for (i, &p) in prep.points.iter().enumerate() {
+            if !rest.exclude_point.is_some_and(|x| x[i]) {
+                point_index[i] = verts.len() as u32;
+                verts.push(p);
+            }
+        }
+        let n_break = verts.len();
         let mut vpiece = vec![NONE; n_break];
         let mut edges: Vec<[usize; 2]> = Vec::new();
         let mut direct = HashMap::new();
         let mut piece_verts: Vec<Vec<u32>> = vec![Vec::new(); prep.pieces.len()];
         for (i, p) in prep.pieces.iter().enumerate() {
-            let mut prev = p.a as usize;
-            piece_verts[i].push(p.a);
+            if rest.skip_piece.is_some_and(|x| x[i]) {
+                continue;
+            }
+            let (a, b) = (point_index[p.a as usize], point_index[p.b as usize]);
+            if a == NONE || b == NONE {
+                return Err(MeshError::TriangulationFailed {
+                    what: "a kept curve piece ends at an excluded point".into(),
+                });
+            }
+            let mut prev = a as usize;
+            piece_verts[i].push(a);
             for &t in &self.nodes[i] {
                 piece_verts[i].push(verts.len() as u32);
                 verts.push(p.at(&prep.points, t));
@@ -358,15 +420,17 @@ impl Staged {
                 edges.push([prev, cur]);
                 prev = cur;
             }
-            edges.push([prev, p.b as usize]);
-            piece_verts[i].push(p.b);
+            edges.push([prev, b as usize]);
+            piece_verts[i].push(b);
             if self.nodes[i].is_empty() {
-                direct.insert((p.a.min(p.b), p.a.max(p.b)), i as u32);
+                direct.insert((a.min(b), a.max(b)), i as u32);
             }
         }
         let extra_piece = prep.pieces.len() as u32;
-        for chain in extra {
+        let mut extra_start = Vec::with_capacity(rest.extra.len());
+        for chain in rest.extra {
             let first = verts.len();
+            extra_start.push(first);
             for (k, &q) in chain.iter().enumerate() {
                 verts.push(q);
                 vpiece.push(extra_piece);
@@ -380,12 +444,21 @@ impl Staged {
         let seed_refs: Vec<Seed> = self
             .seeds
             .iter()
-            .map(|(n, p)| Seed { name: n, at: *p })
+            .enumerate()
+            .map(|(k, (n, p))| Seed {
+                name: n,
+                at: *p,
+                active: rest.active_seed.is_none_or(|a| a[k]),
+            })
             .collect();
-        cdt::label(&mut fine, &seed_refs, prep.tol)?;
+        cdt::label(&mut fine, &seed_refs, prep.tol, rest.active_seed.is_some())?;
         let mut fixed = self.fixed.clone();
         fixed.push(true);
-        let mut piece_ends: Vec<(u32, u32)> = prep.pieces.iter().map(|p| (p.a, p.b)).collect();
+        let mut piece_ends: Vec<(u32, u32)> = prep
+            .pieces
+            .iter()
+            .map(|p| (point_index[p.a as usize], point_index[p.b as usize]))
+            .collect();
         piece_ends.push((NONE, NONE));
         let mut refiner = Refiner::new(
             fine,
@@ -405,6 +478,9 @@ impl Staged {
         for (i, pair) in self.pair_of.iter().enumerate() {
             if let Some((o, same)) = *pair {
                 let (mine, theirs) = (&piece_verts[i], &piece_verts[o as usize]);
+                if mine.is_empty() || theirs.is_empty() {
+                    continue;
+                }
                 for (k, &v) in mine.iter().enumerate() {
                     let k2 = if same { k } else { theirs.len() - 1 - k };
                     partner.insert((v, i as u32), theirs[k2]);
@@ -418,16 +494,25 @@ impl Staged {
         Ok(Fine {
             vpiece: refiner.vpiece,
             cdt: refiner.cdt,
+            point_index,
+            extra_start,
         })
     }
 
     /// The ordered vertex indices of piece `i` from `a` to `b`, walking its constraint edges.
     pub(crate) fn walk_piece(&self, fine: &Fine, i: usize) -> Vec<u32> {
         let p = &self.prep.pieces[i];
-        let mut out = vec![p.a];
+        let (pa, pb) = (
+            fine.point_index[p.a as usize],
+            fine.point_index[p.b as usize],
+        );
+        if pa == NONE || pb == NONE {
+            return Vec::new();
+        }
+        let mut out = vec![pa];
         let mut prev = NONE;
-        let mut cur = p.a;
-        while cur != p.b {
+        let mut cur = pa;
+        while cur != pb {
             let v = fine
                 .cdt
                 .vertex(spade::handles::FixedVertexHandle::from_index(cur as usize));
@@ -437,9 +522,9 @@ impl Staged {
                 if w == prev || !fine.cdt.is_constraint_edge(e.fix().as_undirected()) {
                     continue;
                 }
-                if w == p.b || fine.vpiece[w as usize] == i as u32 {
+                if w == pb || fine.vpiece[w as usize] == i as u32 {
                     next = w;
-                    if w != p.b {
+                    if w != pb {
                         break;
                     }
                 }
@@ -456,7 +541,12 @@ impl Staged {
 
     /// Builds the mesh and its report. `first_vertices`/`first_triangles`: fine vertex
     /// indices and triangles placed first (rigid groups), in order.
-    pub(crate) fn output(&self, g: &Geometry, fine: Fine, _first: &[u32]) -> (Mesh, QualityReport) {
+    pub(crate) fn output(
+        &self,
+        g: &Geometry,
+        fine: Fine,
+        rigid: Option<&RigidPart>,
+    ) -> (Mesh, QualityReport) {
         let cdt = &fine.cdt;
         let nv = cdt.num_vertices();
         // Region ids: meshed regions in geometry order.
@@ -491,11 +581,29 @@ impl Staged {
             }
         }
         let pos: Vec<Point2> = cdt.vertices().map(|v| pt(v.position())).collect();
-        let new_id = hilbert_numbering(&pos, &used, self.prep.min, self.prep.max);
+        // Rigid groups' nodes come first; chain vertices of their outlines are theirs.
+        let ng = rigid.map_or(0, |r| r.verts.len());
+        if let Some(r) = rigid {
+            for &(cv, _) in &r.cdt_to_group {
+                used[cv as usize] = false;
+            }
+        }
+        let mut new_id = hilbert_numbering(&pos, &used, self.prep.min, self.prep.max);
+        for n in new_id.iter_mut() {
+            if *n != u32::MAX {
+                *n += ng as u32;
+            }
+        }
         let mut vertices =
-            vec![Point2::default(); new_id.iter().filter(|&&x| x != u32::MAX).count()];
+            vec![Point2::default(); ng + new_id.iter().filter(|&&x| x != u32::MAX).count()];
+        if let Some(r) = rigid {
+            vertices[..ng].copy_from_slice(r.verts);
+            for &(cv, gv) in &r.cdt_to_group {
+                new_id[cv as usize] = gv;
+            }
+        }
         for (i, &n) in new_id.iter().enumerate() {
-            if n != u32::MAX {
+            if n as usize >= ng && n != u32::MAX {
                 vertices[n as usize] = pos[i];
             }
         }
@@ -512,11 +620,29 @@ impl Staged {
             })
             .collect();
         tri_new.sort_unstable_by_key(|(t, _)| (t[0], t[1], t[2]));
+        if let Some(r) = rigid {
+            let mut first: Vec<([VertexId; 3], RegionId)> = r
+                .tris
+                .iter()
+                .zip(r.tri_regions)
+                .map(|(t, &reg)| (t.map(VertexId), reg))
+                .collect();
+            first.extend(tri_new);
+            tri_new = first;
+        }
         let (triangles, triangle_regions): (Vec<_>, Vec<_>) = tri_new.into_iter().unzip();
 
         // Curve node lists.
-        let piece_nodes: Vec<Vec<u32>> = (0..self.prep.pieces.len())
-            .map(|i| self.walk_piece(&fine, i))
+        // Final node ids of every piece, from a to b.
+        let piece_nodes: Vec<Option<Vec<u32>>> = (0..self.prep.pieces.len())
+            .map(|i| match rigid.and_then(|r| r.piece_nodes[i].as_ref()) {
+                Some(nodes) => Some(nodes.clone()),
+                None => {
+                    let w = self.walk_piece(&fine, i);
+                    let ids: Vec<u32> = w.iter().map(|&v| new_id[v as usize]).collect();
+                    (!w.is_empty() && ids.iter().all(|&n| n != u32::MAX)).then_some(ids)
+                }
+            })
             .collect();
         let curves: Vec<MeshCurve> = g
             .curves
@@ -526,22 +652,16 @@ impl Staged {
                 let mut nodes: Vec<VertexId> = Vec::new();
                 let mut ok = true;
                 for &(p, fwd) in &self.prep.chains[ci] {
-                    let pn = &piece_nodes[p as usize];
-                    if pn.is_empty() {
+                    let Some(pn) = &piece_nodes[p as usize] else {
                         ok = false;
                         break;
-                    }
+                    };
                     let it: Box<dyn Iterator<Item = &u32>> = if fwd {
                         Box::new(pn.iter())
                     } else {
                         Box::new(pn.iter().rev())
                     };
-                    for &v in it {
-                        let n = new_id[v as usize];
-                        if n == u32::MAX {
-                            ok = false;
-                            break;
-                        }
+                    for &n in it {
                         if nodes.last() != Some(&VertexId(n)) {
                             nodes.push(VertexId(n));
                         }
