@@ -380,7 +380,7 @@ impl<'a> Refiner<'a> {
                 }
                 continue;
             }
-            let Some(f) = self.faces.pop_front() else {
+            let Some(f) = self.faces.pop_back() else {
                 break;
             };
             if f.index() >= self.cdt.num_all_faces() {
@@ -516,7 +516,8 @@ impl<'a> Refiner<'a> {
             }
             return Ok(());
         }
-        self.insert_interior(c, hint, lab)?;
+        let near = self.cdt.face(g).vertices()[0].fix();
+        self.insert_interior(c, near, lab)?;
         Ok(())
     }
 
