@@ -311,12 +311,17 @@ pub(crate) fn run(
         let (mut hi, mut g_hi) = (f64::NAN, f64::NAN);
         let mut side = 0i32;
         let mut trial_norm = f64::INFINITY;
+        // The full step (usually accepted) assembles the tangent with the force; shorter
+        // trials assemble the force only, and the tangent is assembled once at the end.
+        let mut tangent_at_trial = false;
         for k in 0..evals {
             for ((xt, xi), di) in x_trial.iter_mut().zip(&x).zip(&delta) {
                 *xt = xi + alpha * di;
             }
             expand(layout, &x_trial, &mut a_trial);
-            assemble(&a_trial, want, &mut force, &mut values, &mut report.times);
+            let w = if k == 0 { want } else { Want::Force };
+            assemble(&a_trial, w, &mut force, &mut values, &mut report.times);
+            tangent_at_trial = w == Want::ForceAndTangent;
             let mut g = 0.0;
             let mut n2 = 0.0;
             for ((f, l), d) in force.iter().zip(load).zip(&delta) {
@@ -369,6 +374,15 @@ pub(crate) fn run(
                 &report,
                 a,
             )));
+        }
+        if !linear && !tangent_at_trial {
+            assemble(
+                &a_trial,
+                Want::ForceAndTangent,
+                &mut force,
+                &mut values,
+                &mut report.times,
+            );
         }
         std::mem::swap(&mut x, &mut x_trial);
         a.copy_from_slice(&a_trial);
