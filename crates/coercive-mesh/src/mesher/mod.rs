@@ -834,11 +834,49 @@ fn local_feature_sizes(
     let mut stamp = vec![u32::MAX; np];
     let mut out = vec![Vec::new(); np];
     let mut query = 0u32;
+    // Pieces at every point, to skip smooth continuations (a circle drawn as four arcs is
+    // one feature: the chords on either side of a joint are not a gap).
+    let mut at_point: Vec<Vec<u32>> = vec![Vec::new(); prep.points.len()];
+    for (i, p) in prep.pieces.iter().enumerate() {
+        at_point[p.a as usize].push(i as u32);
+        at_point[p.b as usize].push(i as u32);
+    }
+    let dir_from = |i: usize, s: u32| -> Point2 {
+        let p = &prep.pieces[i];
+        let other = if p.a == s { p.b } else { p.a };
+        let (o, q) = (prep.points[s as usize], prep.points[other as usize]);
+        let l = o.distance(q);
+        Point2::new((q.x - o.x) / l, (q.y - o.y) / l)
+    };
+    // Nearly straight at `s` between pieces i and j: their directions away from s are
+    // nearly opposite (turn below 30 degrees).
+    let smooth = |i: usize, j: usize, s: u32| {
+        let (u, v) = (dir_from(i, s), dir_from(j, s));
+        u.x * v.x + u.y * v.y < -(30f64.to_radians().cos())
+    };
+    let mut skip_near: Vec<u32> = Vec::new();
     for i in 0..np {
         if !piece_meshed[i] {
             continue;
         }
         let p = &prep.pieces[i];
+        // Pieces two steps away along smooth joints.
+        skip_near.clear();
+        for s in [p.a, p.b] {
+            for &r in &at_point[s as usize] {
+                let r = r as usize;
+                if r == i || !smooth(i, r, s) {
+                    continue;
+                }
+                let rp = &prep.pieces[r];
+                let t = if rp.a == s { rp.b } else { rp.a };
+                for &q in &at_point[t as usize] {
+                    if q as usize != r && smooth(r, q as usize, t) {
+                        skip_near.push(q);
+                    }
+                }
+            }
+        }
         let len = piece_length(prep, i);
         let ns = ((len / (prep.max_size * 0.5)).ceil() as usize).clamp(2, 64);
         for k in 0..=ns {
@@ -860,7 +898,9 @@ fn local_feature_sizes(
                         if o.a == p.a || o.a == p.b || o.b == p.a || o.b == p.b {
                             continue;
                         }
-                        if o.owners.iter().any(|c| p.owners.contains(c)) {
+                        if skip_near.contains(&(q as u32))
+                            || o.owners.iter().any(|c| p.owners.contains(c))
+                        {
                             continue;
                         }
                         let (a, b) = chord(q);
