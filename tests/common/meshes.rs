@@ -290,3 +290,36 @@ pub fn ring_index(radii: &[f64], r: f64) -> usize {
         .position(|x| (x - r).abs() <= 1e-12 * r.abs().max(1e-300))
         .expect("radius is one of the rings")
 }
+
+/// Grid lines from `a` to `b` (either order) whose first interval, at `a`, is about `h0` (m)
+/// and each next one `ratio` times longer, ending exactly at `b`. Returned increasing.
+pub fn grown(a: f64, b: f64, h0: f64, ratio: f64) -> Vec<f64> {
+    let len = (b - a).abs();
+    let n = if (ratio - 1.0).abs() < 1e-12 {
+        (len / h0).ceil()
+    } else {
+        ((len / h0 * (ratio - 1.0) + 1.0).ln() / ratio.ln()).ceil()
+    }
+    .max(1.0) as usize;
+    let mut x = graded(0.0, len, n, ratio);
+    for v in &mut x {
+        *v = if b >= a { a + *v } else { a - *v };
+    }
+    if b < a {
+        x.reverse();
+    }
+    x
+}
+
+/// Concatenates increasing line sets, dropping repeated end points.
+pub fn join(parts: &[Vec<f64>]) -> Vec<f64> {
+    let mut out: Vec<f64> = Vec::new();
+    for p in parts {
+        for &v in p {
+            if out.last().is_none_or(|&l| v > l + 1e-15) {
+                out.push(v);
+            }
+        }
+    }
+    out
+}
