@@ -35,6 +35,8 @@ pub struct QualityReport {
     pub triangles: usize,
     /// Smallest angle of any triangle (degrees).
     pub min_angle_deg: f64,
+    /// Centroid of the triangle with the smallest angle (m).
+    pub min_angle_at: Point2,
     /// Largest angle of any triangle (degrees).
     pub max_angle_deg: f64,
     /// The requested minimum angle (degrees).
@@ -70,22 +72,26 @@ pub(crate) fn compute(
         .collect();
     let (mut min_a, mut max_a, mut max_ratio) = (180.0f64, 0.0f64, 0.0f64);
     let mut below = 0;
+    let mut min_at = Point2::default();
     for (t, _) in mesh.triangles().iter().enumerate() {
         let id = crate::TriangleId(t as u32);
         let p = mesh.triangle_points(id);
         let angles = triangle_angles_deg(p);
         let lo = angles[0].min(angles[1]).min(angles[2]);
         let hi = angles[0].max(angles[1]).max(angles[2]);
-        min_a = min_a.min(lo);
+        let c = Point2::new(
+            (p[0].x + p[1].x + p[2].x) / 3.0,
+            (p[0].y + p[1].y + p[2].y) / 3.0,
+        );
+        if lo < min_a {
+            min_a = lo;
+            min_at = c;
+        }
         max_a = max_a.max(hi);
         if lo < requested_min_angle_deg - 1e-9 {
             below += 1;
         }
         let r = mesh.triangle_region(id);
-        let c = Point2::new(
-            (p[0].x + p[1].x + p[2].x) / 3.0,
-            (p[0].y + p[1].y + p[2].y) / 3.0,
-        );
         let longest = p[0]
             .distance(p[1])
             .max(p[1].distance(p[2]))
@@ -100,6 +106,7 @@ pub(crate) fn compute(
         nodes: mesh.vertices().len(),
         triangles: mesh.triangles().len(),
         min_angle_deg: min_a,
+        min_angle_at: min_at,
         max_angle_deg: max_a,
         requested_min_angle_deg,
         triangles_below_min_angle: below,

@@ -83,6 +83,17 @@ impl RigidMesher {
     /// [`MeshError::RigidGroup`] for an unknown group name or a group overlapping the fixed
     /// geometry; [`MeshError::TooManyTriangles`] as for [`Geometry::mesh`].
     pub fn mesh_at(&self, placements: &[(&str, Placement)]) -> Result<Mesh, MeshError> {
+        crate::mesher::rigid::mesh_at(&self.inner, placements).map(|(m, _)| m)
+    }
+
+    /// As [`RigidMesher::mesh_at`], with the quality report of the whole mesh.
+    ///
+    /// # Errors
+    /// As [`RigidMesher::mesh_at`].
+    pub fn mesh_at_with_report(
+        &self,
+        placements: &[(&str, Placement)],
+    ) -> Result<(Mesh, crate::QualityReport), MeshError> {
         crate::mesher::rigid::mesh_at(&self.inner, placements)
     }
 

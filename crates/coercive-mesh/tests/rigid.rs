@@ -76,8 +76,15 @@ fn a_translated_group_keeps_its_triangles_and_nodes_exactly() {
         .mesh_at(&[("mover", Placement::translation(dx, dy))])
         .unwrap();
     assert_eq!(m1, m2);
-    // The air next to the fixed outline keeps a decent quality.
+    // The air next to the fixed outline keeps a decent quality (points are inserted
+    // beside the fixed outline instead of encroaching it), and the report agrees.
     assert!(common::min_angle(&m1) > 20.0, "{}", common::min_angle(&m1));
+    let (m3, report) = rigid
+        .mesh_at_with_report(&[("mover", Placement::translation(dx, dy))])
+        .unwrap();
+    assert_eq!(m3, m1);
+    assert_eq!(report.triangles, m1.triangles().len());
+    assert_relative_eq!(report.min_angle_deg, common::min_angle(&m1), epsilon = 1e-9);
 }
 
 #[test]

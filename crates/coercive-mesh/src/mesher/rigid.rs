@@ -8,7 +8,7 @@ use spade::Triangulation;
 
 use super::cdt::{cross, dist_to_segment, pt, NONE};
 use super::{hilbert_numbering, Rest, RigidPart, Staged};
-use crate::{Geometry, Mesh, MeshError, Placement, Point2, RegionId};
+use crate::{Geometry, Mesh, MeshError, Placement, Point2, QualityReport, RegionId};
 
 /// A geometry with its rigid groups meshed.
 #[derive(Clone)]
@@ -274,7 +274,10 @@ fn segment_distance(a: Point2, b: Point2, c: Point2, d: Point2) -> f64 {
         .min(dist_to_segment(d, a, b))
 }
 
-pub(crate) fn mesh_at(p: &Prepared, placements: &[(&str, Placement)]) -> Result<Mesh, MeshError> {
+pub(crate) fn mesh_at(
+    p: &Prepared,
+    placements: &[(&str, Placement)],
+) -> Result<(Mesh, QualityReport), MeshError> {
     let mut pl = vec![Placement::default(); p.group_names.len()];
     for (name, placement) in placements {
         let Some(k) = p.group_names.iter().position(|n| n == name) else {
@@ -441,6 +444,5 @@ pub(crate) fn mesh_at(p: &Prepared, placements: &[(&str, Placement)]) -> Result<
         cdt_to_group,
         piece_nodes: &p.piece_nodes,
     };
-    let (mesh, _) = p.staged.output(&p.geometry, fine, Some(&part));
-    Ok(mesh)
+    Ok(p.staged.output(&p.geometry, fine, Some(&part)))
 }
