@@ -72,7 +72,10 @@ impl Geometry {
     /// has no rigid group, a group names an unknown region, a region is in two groups, or a
     /// group touches the fixed geometry.
     pub fn prepare_rigid(&self) -> Result<RigidMesher, MeshError> {
-        crate::mesher::rigid::prepare(self).map(|inner| RigidMesher { inner })
+        crate::mesher::cdt::guarded("meshing rigid groups", || {
+            crate::mesher::rigid::prepare(self)
+        })?
+        .map(|inner| RigidMesher { inner })
     }
 }
 
@@ -83,7 +86,7 @@ impl RigidMesher {
     /// [`MeshError::RigidGroup`] for an unknown group name or a group overlapping the fixed
     /// geometry; [`MeshError::TooManyTriangles`] as for [`Geometry::mesh`].
     pub fn mesh_at(&self, placements: &[(&str, Placement)]) -> Result<Mesh, MeshError> {
-        crate::mesher::rigid::mesh_at(&self.inner, placements).map(|(m, _)| m)
+        self.mesh_at_with_report(placements).map(|(m, _)| m)
     }
 
     /// As [`RigidMesher::mesh_at`], with the quality report of the whole mesh.
@@ -94,7 +97,9 @@ impl RigidMesher {
         &self,
         placements: &[(&str, Placement)],
     ) -> Result<(Mesh, crate::QualityReport), MeshError> {
-        crate::mesher::rigid::mesh_at(&self.inner, placements)
+        crate::mesher::cdt::guarded("meshing around rigid groups", || {
+            crate::mesher::rigid::mesh_at(&self.inner, placements)
+        })?
     }
 
     /// Number of nodes belonging to the rigid groups: nodes `0..n` of every mesh returned by

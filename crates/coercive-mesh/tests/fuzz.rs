@@ -103,4 +103,58 @@ proptest! {
             }
         }
     }
+
+    /// Random circles (arcs) overlapping each other and the box: never a panic; valid
+    /// meshes or typed errors.
+    #[test]
+    fn random_circles_never_panic(
+        circles in prop::collection::vec((0.1f64..0.9, 0.1f64..0.9, 0.02f64..0.4), 1..5),
+        seed in (0.0f64..1.0, 0.0f64..1.0),
+    ) {
+        let mut g = Geometry::new();
+        g.add_rectangle(Point2::new(0.0, 0.0), Point2::new(1.0, 1.0));
+        for &(x, y, r) in &circles {
+            g.add_circle(Point2::new(x, y), r);
+        }
+        g.add_region("air", Point2::new(seed.0, seed.1));
+        g.set_settings(settings());
+        match std::panic::catch_unwind(|| g.mesh()) {
+            Err(_) => prop_assert!(false, "meshing panicked"),
+            Ok(Ok(m)) => m.sanity_check().unwrap(),
+            Ok(Err(_)) => {}
+        }
+    }
+
+    /// A square rigid group moved anywhere in a box with a fixed bar: either a valid mesh
+    /// whose group nodes are exactly the moved originals, or a rigid-group error.
+    #[test]
+    fn random_rigid_moves_keep_the_group_or_refuse(dx in -0.6f64..0.6, dy in -0.6f64..0.6, a in -3.2f64..3.2) {
+        let mut g = Geometry::new();
+        g.add_rectangle(Point2::new(0.0, 0.0), Point2::new(1.0, 1.0));
+        g.add_rectangle(Point2::new(0.1, 0.1), Point2::new(0.9, 0.2));
+        g.add_rectangle(Point2::new(0.4, 0.5), Point2::new(0.6, 0.7));
+        g.add_region("air", Point2::new(0.05, 0.5));
+        g.add_region("bar", Point2::new(0.5, 0.15));
+        g.add_region("block", Point2::new(0.5, 0.6));
+        g.add_rigid_group("mover", &["block"]);
+        g.set_settings(settings());
+        let rigid = g.prepare_rigid().unwrap();
+        let m0 = rigid.mesh_at(&[]).unwrap();
+        let pl = coercive_mesh::Placement {
+            translation: Point2::new(dx, dy),
+            rotation_rad: a,
+            about: Point2::new(0.5, 0.6),
+        };
+        match std::panic::catch_unwind(|| rigid.mesh_at(&[("mover", pl)])) {
+            Err(_) => prop_assert!(false, "meshing panicked"),
+            Ok(Ok(m)) => {
+                m.sanity_check().unwrap();
+                for i in 0..rigid.group_node_count() {
+                    prop_assert_eq!(m.vertices()[i], pl.apply(m0.vertices()[i]));
+                }
+                prop_assert!((m.region_area(RegionId(0)) + m.region_area(RegionId(1)) + m.region_area(RegionId(2)) - 1.0).abs() < 1e-9);
+            }
+            Ok(Err(e)) => prop_assert!(matches!(e, coercive_mesh::MeshError::RigidGroup { .. }), "{:?}", e),
+        }
+    }
 }

@@ -32,10 +32,15 @@ use input::Prepared;
 use size::SizeField;
 
 /// Meshes a geometry (see [`Geometry::mesh_with_report`]).
+///
+/// The whole pipeline runs under `catch_unwind` as a last line of defence: an unexpected
+/// panic (in the triangulation library or here) becomes [`MeshError::TriangulationFailed`].
 pub(crate) fn mesh_geometry(g: &Geometry) -> Result<(Mesh, QualityReport), MeshError> {
-    let stage = Staged::new(g)?;
-    let fine = stage.triangulate(&[])?;
-    Ok(stage.output(g, fine, None))
+    cdt::guarded("meshing", || {
+        let stage = Staged::new(g)?;
+        let fine = stage.triangulate(&[])?;
+        Ok(stage.output(g, fine, None))
+    })?
 }
 
 /// Everything known after the coarse stage.
