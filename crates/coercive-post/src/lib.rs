@@ -1,3 +1,17 @@
 //! Post-processing for Coercive: fields, flux linkage, energy, co-energy, force, torque, plots.
 #![warn(missing_docs)]
 #![deny(rustdoc::broken_intra_doc_links)]
+
+mod error;
+pub mod field;
+mod integrate;
+pub mod locate;
+pub mod table;
+
+pub use error::PostError;
+pub use field::{
+    FieldProbe, MagnetWorkingPoint, PathSample, PathSamples, PointField, RegionAverage,
+    RegionAverageTable, WorkingPointTable,
+};
+pub use locate::{Location, PointLocator};
+pub use table::Tabular;
