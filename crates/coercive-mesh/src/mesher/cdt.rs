@@ -572,12 +572,32 @@ impl<'a> Refiner<'a> {
                 (p, a, b)
             })
         };
-        match (ends(u), ends(v)) {
-            (Some((pu, a, b)), Some((pv, c, d))) => {
-                pu != pv && (a == c || a == d || b == c || b == d)
+        let apex = match (ends(u), ends(v)) {
+            (Some((pu, a, b)), Some((pv, c, d))) if pu != pv => {
+                if a == c || a == d {
+                    a
+                } else if b == c || b == d {
+                    b
+                } else {
+                    return false;
+                }
             }
-            _ => false,
+            _ => return false,
+        };
+        if apex == NONE {
+            return false;
         }
+        // Only a small input angle (below 60 degrees) excuses the triangle.
+        let pos = |x: u32| {
+            pt(self
+                .cdt
+                .vertex(FixedVertexHandle::from_index(x as usize))
+                .position())
+        };
+        let (s, pu, pv) = (pos(apex), pos(u), pos(v));
+        let (ax, ay, bx, by) = (pu.x - s.x, pu.y - s.y, pv.x - s.x, pv.y - s.y);
+        let dot = ax * bx + ay * by;
+        dot > 0.5 * (ax * ax + ay * ay).sqrt() * (bx * bx + by * by).sqrt()
     }
 
     fn first_constraint_crossed(
