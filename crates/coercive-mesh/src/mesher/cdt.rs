@@ -481,8 +481,9 @@ impl<'a> Refiner<'a> {
             PositionInTriangulation::OnEdge(e) => {
                 if self.cdt.is_constraint_edge(e.as_undirected()) {
                     if !self.is_fixed_edge(e.as_undirected()) {
-                        self.split_segment(e.as_undirected())?;
-                        self.faces.push_back(f);
+                        if self.split_segment(e.as_undirected())? {
+                            self.faces.push_back(f);
+                        }
                     }
                     return Ok(());
                 }
@@ -496,8 +497,9 @@ impl<'a> Refiner<'a> {
             // The circumcentre lies across a constraint: split the first one crossed.
             if let Some(e) = self.first_constraint_crossed(centroid, c) {
                 if !self.is_fixed_edge(e) {
-                    self.split_segment(e)?;
-                    self.faces.push_back(f);
+                    if self.split_segment(e)? {
+                        self.faces.push_back(f);
+                    }
                 } else {
                     self.insert_beside_fixed(e, centroid, lab, hint)?;
                 }
@@ -511,8 +513,9 @@ impl<'a> Refiner<'a> {
             if self.is_fixed_edge(e) {
                 self.insert_beside_fixed(e, centroid, lab, hint)?;
             } else {
-                self.split_segment(e)?;
-                self.faces.push_back(f);
+                if self.split_segment(e)? {
+                    self.faces.push_back(f);
+                }
             }
             return Ok(());
         }
@@ -697,18 +700,19 @@ impl<'a> Refiner<'a> {
     /// Splits a constraint edge (not fixed) at its middle, or at a power-of-two distance from
     /// an input vertex (concentric shells, so that runaway splitting next to small input
     /// angles stops). An edge of a paired piece is split together with its partner edge at
-    /// the same fraction, so that paired curves keep matched nodes.
-    pub fn split_segment(&mut self, e: FixedUndirectedEdgeHandle) -> Result<(), MeshError> {
+    /// the same fraction, so that paired curves keep matched nodes. Returns whether the
+    /// edge was split (callers must not retry a triangle when it was not: no progress).
+    pub fn split_segment(&mut self, e: FixedUndirectedEdgeHandle) -> Result<bool, MeshError> {
         let de = self.cdt.directed_edge(e.as_directed());
         let (u, v) = (de.from().fix(), de.to().fix());
         let (pu, pv) = (pt(de.from().position()), pt(de.to().position()));
         let piece = self.piece_of_edge(u.index() as u32, v.index() as u32);
         if piece == NONE {
-            return Ok(());
+            return Ok(false);
         }
         let len = pu.distance(pv);
         if len < 2.0 * self.min_edge {
-            return Ok(());
+            return Ok(false);
         }
         let u_input = (u.index()) < self.n_break;
         let v_input = (v.index()) < self.n_break;
@@ -732,7 +736,7 @@ impl<'a> Refiner<'a> {
             (other, pu2, pv2)
         });
         let Some(w) = self.split_at(u, v, t, piece)? else {
-            return Ok(());
+            return Ok(false);
         };
         if let Some((other, Some(u2), Some(v2))) = partner {
             let (hu2, hv2) = (
@@ -752,7 +756,7 @@ impl<'a> Refiner<'a> {
                 what: "a paired curve edge has no partner".into(),
             });
         }
-        Ok(())
+        Ok(true)
     }
 
     /// Splits the constraint edge `u v` of `piece` at fraction `t` from `u`; returns the
