@@ -480,10 +480,10 @@ impl<'a> Refiner<'a> {
             PositionInTriangulation::OnFace(g) => Some(g),
             PositionInTriangulation::OnEdge(e) => {
                 if self.cdt.is_constraint_edge(e.as_undirected()) {
-                    if !self.is_fixed_edge(e.as_undirected()) {
-                        if self.split_segment(e.as_undirected())? {
-                            self.faces.push_back(f);
-                        }
+                    if !self.is_fixed_edge(e.as_undirected())
+                        && self.split_segment(e.as_undirected())?
+                    {
+                        self.faces.push_back(f);
                     }
                     return Ok(());
                 }
