@@ -6,6 +6,7 @@ mod error;
 pub mod field;
 mod integrate;
 pub mod locate;
+pub mod plot;
 pub mod table;
 
 pub use error::PostError;

@@ -130,3 +130,89 @@ pub fn locate(mesh: &Mesh, p: [f64; 2]) -> coercive_mesh::TriangleId {
         })
         .expect("point inside the mesh")
 }
+
+/// A tensor-product mesh on the grid `xs` x `ys` (both increasing), each cell cut into two
+/// triangles, the region of a cell given by `region_of(centre)`. Curves as the structured
+/// rectangle: `bottom`, `right`, `top`, `left` (counter-clockwise).
+pub fn tensor(xs: &[f64], ys: &[f64], region_of: impl Fn([f64; 2]) -> &'static str) -> Mesh {
+    let (nx, ny) = (xs.len() - 1, ys.len() - 1);
+    let id = |i: usize, j: usize| VertexId((j * (nx + 1) + i) as u32);
+    let mut vertices = Vec::new();
+    for &y in ys {
+        for &x in xs {
+            vertices.push(Point2::new(x, y));
+        }
+    }
+    let mut names: Vec<&str> = Vec::new();
+    let mut triangles = Vec::new();
+    let mut tri_regions = Vec::new();
+    for j in 0..ny {
+        for i in 0..nx {
+            let name = region_of([0.5 * (xs[i] + xs[i + 1]), 0.5 * (ys[j] + ys[j + 1])]);
+            let r = match names.iter().position(|n| *n == name) {
+                Some(r) => r,
+                None => {
+                    names.push(name);
+                    names.len() - 1
+                }
+            };
+            let (a, b, c, d) = (id(i, j), id(i + 1, j), id(i + 1, j + 1), id(i, j + 1));
+            if (i + j) % 2 == 0 {
+                triangles.push([a, b, c]);
+                triangles.push([a, c, d]);
+            } else {
+                triangles.push([a, b, d]);
+                triangles.push([b, c, d]);
+            }
+            tri_regions.push(RegionId(r as u32));
+            tri_regions.push(RegionId(r as u32));
+        }
+    }
+    let curve = |name: &str, nodes: Vec<VertexId>| MeshCurve {
+        name: Some(name.to_string()),
+        nodes,
+    };
+    let curves = vec![
+        curve("bottom", (0..=nx).map(|i| id(i, 0)).collect()),
+        curve("right", (0..=ny).map(|j| id(nx, j)).collect()),
+        curve("top", (0..=nx).rev().map(|i| id(i, ny)).collect()),
+        curve("left", (0..=ny).rev().map(|j| id(0, j)).collect()),
+    ];
+    Mesh::from_parts(
+        vertices,
+        triangles,
+        tri_regions,
+        names
+            .into_iter()
+            .map(|n| MeshRegion {
+                name: n.to_string(),
+                rigid_group: None,
+            })
+            .collect(),
+        curves,
+        Vec::new(),
+    )
+    .unwrap()
+}
+
+/// Grid coordinates through `breaks`, stepping by the local size `h(x)` between consecutive
+/// breaks (each interval's steps stretched to end on its break).
+pub fn graded(breaks: &[f64], h: impl Fn(f64) -> f64) -> Vec<f64> {
+    let mut out = vec![breaks[0]];
+    for w in breaks.windows(2) {
+        let mut steps = vec![w[0]];
+        let mut x = w[0];
+        while x < w[1] {
+            x += h(x);
+            steps.push(x);
+        }
+        if steps.len() > 2 && (x - w[1]) > 0.5 * h(w[1]) {
+            steps.pop();
+        }
+        let last = *steps.last().unwrap();
+        for s in &steps[1..] {
+            out.push(w[0] + (s - w[0]) * (w[1] - w[0]) / (last - w[0]));
+        }
+    }
+    out
+}
