@@ -2,13 +2,16 @@
 #![warn(missing_docs)]
 #![deny(rustdoc::broken_intra_doc_links)]
 
+pub mod energy;
 mod error;
 pub mod field;
 mod integrate;
 pub mod locate;
 pub mod plot;
 pub mod table;
+pub mod winding;
 
+pub use energy::{EnergyTable, RegionEnergy};
 pub use error::PostError;
 pub use field::{
     FieldProbe, MagnetWorkingPoint, PathSample, PathSamples, PointField, RegionAverage,
@@ -16,3 +19,8 @@ pub use field::{
 };
 pub use locate::{Location, PointLocator};
 pub use table::Tabular;
+pub use winding::{
+    apparent_inductance, flux_linkage, flux_linkages, incremental_inductance,
+    incremental_inductances, DifferenceSettings, FluxLinkage, FluxLinkageTable, Inductance,
+    InductanceMatrix,
+};
