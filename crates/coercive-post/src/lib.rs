@@ -5,6 +5,7 @@
 pub mod energy;
 mod error;
 pub mod field;
+pub mod force;
 mod integrate;
 pub mod locate;
 pub mod plot;
