@@ -148,9 +148,13 @@ fn print_report(
         seconds,
         report.triangles as f64 / seconds.max(1e-9)
     );
+    let unit = case.unit();
     println!(
-        "angles: min {:.2} deg, max {:.2} deg (requested min {:.1} deg; {} triangles below it)",
+        "angles: min {:.2} deg (at ({:.4}, {:.4}) {}), max {:.2} deg (requested min {:.1} deg; {} triangles below it)",
         report.min_angle_deg,
+        unit.from_metres(report.min_angle_at.x),
+        unit.from_metres(report.min_angle_at.y),
+        unit.symbol(),
         report.max_angle_deg,
         report.requested_min_angle_deg,
         report.triangles_below_min_angle
@@ -159,7 +163,6 @@ fn print_report(
         "size: longest edge at most {:.3} x the local target size",
         report.max_size_ratio
     );
-    let unit = case.unit();
     let width = report
         .regions
         .iter()
@@ -190,6 +193,14 @@ fn print_report(
         );
     }
     if let Some(svg) = svg {
-        println!("drawing: {}", svg.display());
+        let max = SvgOptions::default().max_triangles_with_edges;
+        if report.triangles > max {
+            println!(
+                "drawing: {} (triangle edges left out above {max} triangles)",
+                svg.display()
+            );
+        } else {
+            println!("drawing: {}", svg.display());
+        }
     }
 }

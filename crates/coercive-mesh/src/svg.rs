@@ -23,7 +23,7 @@
 use std::collections::HashMap;
 use std::fmt::Write as _;
 
-use crate::{Mesh, Point2, RegionId, VertexId};
+use crate::{Mesh, Point2, VertexId};
 
 /// Options of [`mesh_to_svg`].
 #[derive(Clone, Debug, PartialEq)]
@@ -324,26 +324,46 @@ fn bounding_box(points: &[Point2]) -> Option<(Point2, Point2)> {
 /// at one vertex only) are fine: an even-odd fill depends only on the set of edges.
 fn region_boundary_loops(mesh: &Mesh) -> Vec<Vec<Vec<VertexId>>> {
     let nr = mesh.regions().len();
-    // Directed edges of each region; an edge whose reverse belongs to the same region is
-    // interior to it.
-    let mut directed: HashMap<(VertexId, VertexId), RegionId> =
-        HashMap::with_capacity(3 * mesh.triangles().len());
-    for (t, tri) in mesh.triangles().iter().enumerate() {
-        let r = mesh.triangle_regions()[t];
+    let tris = mesh.triangles();
+    let regions = mesh.triangle_regions();
+    // Every triangle side keyed by its undirected edge, sorted so that the two sides of an
+    // edge are neighbours (a sort is several times faster than hashing at 1M triangles).
+    let mut sides: Vec<(u64, u32)> = Vec::with_capacity(3 * tris.len());
+    for (t, tri) in tris.iter().enumerate() {
         for k in 0..3 {
-            directed.insert((tri[k], tri[(k + 1) % 3]), r);
+            let (a, b) = (tri[k].0, tri[(k + 1) % 3].0);
+            let key = (u64::from(a.min(b)) << 32) | u64::from(a.max(b));
+            sides.push((key, (3 * t + k) as u32));
         }
     }
+    sides.sort_unstable();
+    let side = |code: u32| {
+        let (t, k) = (code as usize / 3, code as usize % 3);
+        let tri = tris[t];
+        (tri[k], tri[(k + 1) % 3], regions[t])
+    };
+    // A side is on its region's boundary unless the same edge's other side is in the same
+    // region.
     let mut boundary: Vec<Vec<(VertexId, VertexId)>> = vec![Vec::new(); nr];
-    for (&(a, b), &r) in &directed {
-        if directed.get(&(b, a)) != Some(&r) {
-            boundary[r.index()].push((a, b));
+    let mut i = 0;
+    while i < sides.len() {
+        let mut j = i + 1;
+        while j < sides.len() && sides[j].0 == sides[i].0 {
+            j += 1;
         }
+        let interior = j == i + 2 && side(sides[i].1).2 == side(sides[i + 1].1).2;
+        if !interior {
+            for &(_, code) in &sides[i..j] {
+                let (a, b, r) = side(code);
+                boundary[r.index()].push((a, b));
+            }
+        }
+        i = j;
     }
     boundary
         .into_iter()
         .map(|mut edges| {
-            // Sort for a deterministic drawing (HashMap order is random).
+            // Sort for a deterministic drawing.
             edges.sort_unstable();
             let mut next: HashMap<VertexId, Vec<VertexId>> = HashMap::with_capacity(edges.len());
             for &(a, b) in &edges {
@@ -430,7 +450,7 @@ fn escape(s: &str) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::{structured, MeshRegion, TriangleId};
+    use crate::{structured, MeshRegion, RegionId, TriangleId};
 
     /// A 2 x 1 rectangle of 8 x 4 cells: triangles left of x = 1 in `iron & co`, the rest in
     /// `air`.
