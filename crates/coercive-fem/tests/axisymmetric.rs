@@ -43,10 +43,11 @@ fn solenoid(order: ElementOrder) -> Model {
         .unwrap()
 }
 
-/// On-axis field of a finite solenoid, B = (mu_0 n I / 2) [(z + L/2)/sqrt((z + L/2)^2 + R^2)
-/// - (z - L/2)/sqrt((z - L/2)^2 + R^2)] (standard, e.g. Griffiths, Introduction to
-/// Electrodynamics, 4th ed., problem 5.11); 12.3223 mT at the centre and 6.25200 mT at an end
-/// for n = 1e4 /m, I = 1 A (computed; shared/check-values.md item 6).
+/// On-axis field of a finite solenoid,
+/// B = (mu_0 n I / 2) [(z + L/2)/sqrt((z + L/2)^2 + R^2) minus (z - L/2)/sqrt((z - L/2)^2 + R^2)]
+/// (standard, e.g. Griffiths, Introduction to Electrodynamics, 4th ed., problem 5.11);
+/// 12.3223 mT at the centre and 6.25200 mT at an end for n = 1e4 /m, I = 1 A (computed;
+/// shared/check-values.md item 6).
 fn b_axis(z: f64) -> f64 {
     let (p, m) = (z + L / 2.0, z - L / 2.0);
     0.5 * MU_0 * 1e4 * (p / (p * p + R * R).sqrt() - m / (m * m + R * R).sqrt())
