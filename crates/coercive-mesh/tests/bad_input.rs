@@ -231,3 +231,18 @@ fn curve_pairs_of_different_lengths_are_refused() {
         MeshError::CurvePairMismatch { pair: 0, .. }
     ));
 }
+
+#[test]
+fn curves_almost_touching_ask_for_too_many_triangles() {
+    // Two parallel segments 1e-8 m apart in a 1 m square: the automatic gap size
+    // (gap / 3) would need ~1e8 boundary nodes; the guard refuses before allocating them.
+    let mut g = square();
+    let a = g.add_point(Point2::new(0.2, 0.5));
+    let b = g.add_point(Point2::new(0.8, 0.5));
+    let c = g.add_point(Point2::new(0.2, 0.5 + 1e-8));
+    let d = g.add_point(Point2::new(0.8, 0.5 + 1e-8));
+    g.add_segment(a, b);
+    g.add_segment(c, d);
+    g.regions[0].seed = Point2::new(0.1, 0.1);
+    assert!(matches!(err(&g), MeshError::TooManyTriangles { .. }));
+}

@@ -157,4 +157,35 @@ proptest! {
             Ok(Err(e)) => prop_assert!(matches!(e, coercive_mesh::MeshError::RigidGroup { .. }), "{:?}", e),
         }
     }
+
+    /// Nearly coincident and nearly collinear curves (offsets from 1e-12 to 1e-5 of the
+    /// drawing): snapping, splitting and the triangle limit keep meshing panic-free.
+    #[test]
+    fn nearly_overlapping_segments_never_panic(
+        e in prop::collection::vec(-1e-5f64..1e-5, 4),
+        scale in prop::sample::select(vec![1e-7, 1e-3, 1.0]),
+        x in prop::collection::vec(0.05f64..0.95, 4),
+    ) {
+        let mut g = Geometry::new();
+        g.add_rectangle(Point2::new(0.0, 0.0), Point2::new(1.0, 1.0));
+        let a = g.add_point(Point2::new(x[0].min(x[1]), 0.5));
+        let b = g.add_point(Point2::new(x[0].max(x[1]) + 0.01, 0.5));
+        g.add_segment(a, b);
+        let c = g.add_point(Point2::new(x[2].min(x[3]), 0.5 + e[0] * scale));
+        let d = g.add_point(Point2::new(x[2].max(x[3]) + 0.01, 0.5 + e[1] * scale));
+        g.add_segment(c, d);
+        let f = g.add_point(Point2::new(x[0] + e[2] * scale, 0.2));
+        let h = g.add_point(Point2::new(x[0] + e[3] * scale, 0.5 + e[2] * scale));
+        g.add_segment(f, h);
+        g.add_region("air", Point2::new(0.02, 0.02));
+        g.set_settings(MeshSettings { max_triangles: 20_000, ..settings() });
+        match std::panic::catch_unwind(|| g.mesh()) {
+            Err(_) => prop_assert!(false, "meshing panicked"),
+            Ok(Ok(m)) => {
+                m.sanity_check().unwrap();
+                prop_assert!((m.region_area(RegionId(0)) - 1.0).abs() < 1e-9);
+            }
+            Ok(Err(_)) => {}
+        }
+    }
 }

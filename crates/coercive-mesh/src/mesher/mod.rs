@@ -256,6 +256,23 @@ impl Staged {
         Ok(staged)
     }
 
+    /// The error for a curve piece asking for more nodes than the triangle limit.
+    fn too_many(&self, i: usize) -> MeshError {
+        let p = &self.prep.pieces[i];
+        let (a, b) = (
+            self.prep.points[p.a as usize],
+            self.prep.points[p.b as usize],
+        );
+        MeshError::TooManyTriangles {
+            estimated: self.max_triangles.saturating_add(1),
+            limit: self.max_triangles,
+            detail: format!(
+                " (the curve from ({}, {}) to ({}, {}) needs very small elements: is another curve almost touching it?)",
+                a.x, a.y, b.x, b.y
+            ),
+        }
+    }
+
     /// The exact size along piece `i` at fraction `t` (m).
     fn piece_size(&self, i: usize, t: f64, lfs: &[(f64, f64)]) -> f64 {
         let p = &self.prep.pieces[i];
@@ -290,6 +307,8 @@ impl Staged {
     ) -> Result<(), MeshError> {
         let np = self.prep.pieces.len();
         let mut nodes: Vec<Option<Vec<f64>>> = vec![None; np];
+        // Nodes on curves are fewer than triangles: stop before allocating absurd counts.
+        let mut budget = self.max_triangles;
         // Curve pairs first: matched fractions.
         let mut in_pair = vec![false; np];
         for (pi, pair) in g.curve_pairs.iter().enumerate() {
@@ -349,7 +368,8 @@ impl Staged {
                     (len1 / self.piece_size(p1, s1, &lfs[p1]))
                         .max(len2 / self.piece_size(p2, s2, &lfs[p2]))
                 };
-                let fr = fractions(dens);
+                let fr = fractions(dens, budget).ok_or_else(|| self.too_many(p1))?;
+                budget = budget.saturating_sub(fr.len());
                 let conv = |d: bool| -> Vec<f64> {
                     if d {
                         fr.clone()
@@ -372,7 +392,10 @@ impl Staged {
                 continue;
             }
             let len = piece_length(&self.prep, i);
-            nodes[i] = Some(fractions(|s| len / self.piece_size(i, s, &lfs[i])));
+            let fr = fractions(|s| len / self.piece_size(i, s, &lfs[i]), budget)
+                .ok_or_else(|| self.too_many(i))?;
+            budget = budget.saturating_sub(fr.len());
+            nodes[i] = Some(fr);
         }
         self.nodes = nodes.into_iter().map(|n| n.unwrap_or_default()).collect();
         Ok(())
@@ -771,11 +794,14 @@ pub(crate) fn piece_length(prep: &Prepared, i: usize) -> f64 {
 
 /// Interior node fractions for a piece with node density `dens(s)` (nodes per unit
 /// fraction): n = ceil(integral) segments at equal steps of the integral.
-fn fractions(dens: impl Fn(f64) -> f64) -> Vec<f64> {
+fn fractions(dens: impl Fn(f64) -> f64, cap: usize) -> Option<Vec<f64>> {
     // Coarse pass to choose the sampling.
     let mut peak: f64 = 0.0;
     for k in 0..=32 {
         peak = peak.max(dens(k as f64 / 32.0));
+    }
+    if !peak.is_finite() || peak > cap as f64 {
+        return None;
     }
     let m = ((peak * 4.0).ceil() as usize).clamp(64, 1 << 22);
     let mut cum = Vec::with_capacity(m + 1);
@@ -787,6 +813,9 @@ fn fractions(dens: impl Fn(f64) -> f64) -> Vec<f64> {
         prev = d;
     }
     let total = cum[m];
+    if !total.is_finite() || total > cap as f64 {
+        return None;
+    }
     let n = ((total * 0.999).ceil() as usize).max(1);
     let mut out = Vec::with_capacity(n.saturating_sub(1));
     let mut j = 0;
@@ -803,7 +832,7 @@ fn fractions(dens: impl Fn(f64) -> f64) -> Vec<f64> {
         };
         out.push((j as f64 + frac) / m as f64);
     }
-    out
+    Some(out)
 }
 
 /// For every meshed piece, samples (fraction, size) of the automatic local feature size:
