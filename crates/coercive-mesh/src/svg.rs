@@ -17,8 +17,9 @@
 //! # Colours
 //! Region fills use the colour-blind-safe qualitative palette of P. Tol ("muted" scheme,
 //! Paul Tol's Notes, *Colour schemes*, SRON/EPS/TN/09-002, 2021). Regions whose name starts
-//! with `air` (any case) get a pale grey so that parts stand out; the palette repeats after
-//! nine regions (the legend still tells them apart by name).
+//! with `air` (any case) get a pale grey so that parts stand out. Regions sharing an edge get
+//! different colours while the palette's nine allow it; the legend tells regions apart by
+//! name in any case.
 
 use std::collections::HashMap;
 use std::fmt::Write as _;
@@ -68,13 +69,48 @@ const PALETTE: [&str; 9] = [
 /// Fill of regions named `air...`.
 const AIR_FILL: &str = "#EEEEEE";
 
-/// The fill colour used for region `index` named `name` (as `#RRGGBB`).
+/// The base fill colour of region `index` named `name` (as `#RRGGBB`). [`mesh_to_svg`]
+/// moves a region to the next palette colour when a neighbouring region already has it.
 pub fn region_colour(index: usize, name: &str) -> &'static str {
     if name.to_ascii_lowercase().starts_with("air") {
         AIR_FILL
     } else {
         PALETTE[index % PALETTE.len()]
     }
+}
+
+/// Fill colours of all regions: the base colour of [`region_colour`], moved along the palette
+/// until it differs from the regions already coloured that share an edge with it (when the
+/// palette has a free colour).
+fn region_colours(mesh: &Mesh, owner: &HashMap<(VertexId, VertexId), usize>) -> Vec<&'static str> {
+    let regions = mesh.regions();
+    let mut neighbours = vec![std::collections::BTreeSet::new(); regions.len()];
+    for (&(a, b), &r) in owner {
+        if let Some(&s) = owner.get(&(b, a)) {
+            if s != r {
+                neighbours[r].insert(s);
+            }
+        }
+    }
+    let mut colours: Vec<&'static str> = Vec::with_capacity(regions.len());
+    for (r, region) in regions.iter().enumerate() {
+        let base = region_colour(r, &region.name);
+        let colour = if base == AIR_FILL {
+            base
+        } else {
+            let used: Vec<&str> = neighbours[r]
+                .iter()
+                .filter(|&&s| s < r)
+                .map(|&s| colours[s])
+                .collect();
+            (0..PALETTE.len())
+                .map(|k| PALETTE[(r + k) % PALETTE.len()])
+                .find(|c| !used.contains(c))
+                .unwrap_or(base)
+        };
+        colours.push(colour);
+    }
+    colours
 }
 
 /// Draws `mesh` as an SVG document (see the module docs for what is drawn).
@@ -150,6 +186,7 @@ pub fn mesh_to_svg(mesh: &Mesh, options: &SvgOptions) -> String {
             }
         }
     }
+    let colours = region_colours(mesh, &owner);
     out.push_str(r#"<g id="regions" stroke="none" fill-rule="evenodd">"#);
     out.push('\n');
     for (r, region) in regions.iter().enumerate() {
@@ -157,7 +194,7 @@ pub fn mesh_to_svg(mesh: &Mesh, options: &SvgOptions) -> String {
             out,
             r#"<path class="region" data-region="{}" fill="{}" d=""#,
             escape(&region.name),
-            region_colour(r, &region.name)
+            colours[r]
         );
         for lp in &loops[r] {
             for (k, &v) in lp.iter().enumerate() {
@@ -254,7 +291,7 @@ pub fn mesh_to_svg(mesh: &Mesh, options: &SvgOptions) -> String {
                 out,
                 r##"<rect x="{lx}" y="{}" width="{font}" height="{font}" fill="{}" stroke="#000000" stroke-width="0.5"/><text x="{}" y="{}">{}</text>"##,
                 y - 0.85 * font,
-                region_colour(r, &region.name),
+                colours[r],
                 lx + 1.5 * font,
                 y + 0.1 * font,
                 escape(&region.name)
@@ -613,6 +650,45 @@ mod tests {
             edges >= set.len() - boundary && edges <= set.len(),
             "{edges}"
         );
+    }
+
+    #[test]
+    fn neighbouring_regions_get_different_colours() {
+        // Ten vertical strips; strip 1 is region 9, whose base colour is region 0's.
+        let m = structured::rectangle(0.0, 0.0, 0.01, 0.001, 10, 1, "r").unwrap();
+        let order = [0u32, 9, 1, 2, 3, 4, 5, 6, 7, 8];
+        let regions: Vec<RegionId> = (0..m.triangles().len())
+            .map(|t| {
+                let [a, b, c] = m.triangle_points(TriangleId(t as u32));
+                let strip = (((a.x + b.x + c.x) / 3.0) / 0.001) as usize;
+                RegionId(order[strip])
+            })
+            .collect();
+        let names: Vec<MeshRegion> = (0..10)
+            .map(|i| MeshRegion {
+                name: format!("part{i}"),
+                rigid_group: None,
+            })
+            .collect();
+        let m = Mesh::from_parts(
+            m.vertices().to_vec(),
+            m.triangles().to_vec(),
+            regions,
+            names,
+            Vec::new(),
+            Vec::new(),
+        )
+        .unwrap();
+        assert_eq!(region_colour(0, "part0"), region_colour(9, "part9"));
+        let svg = mesh_to_svg(&m, &SvgOptions::default());
+        let fill = |name: &str| {
+            let at = svg.find(&format!("data-region=\"{name}\"")).unwrap();
+            let f = svg[at..].find("fill=\"").unwrap() + at + 6;
+            svg[f..f + 7].to_string()
+        };
+        assert_ne!(fill("part0"), fill("part9"));
+        // The legend uses the same colour as the fill.
+        assert!(svg.contains(&format!("fill=\"{}\" stroke=\"#000000\"", fill("part9"))));
     }
 
     #[test]
