@@ -374,7 +374,7 @@ impl Geometry {
     /// variants), or [`MeshError::TooManyTriangles`] when the sizes ask for more triangles
     /// than [`MeshSettings::max_triangles`].
     pub fn mesh(&self) -> Result<Mesh, MeshError> {
-        self.mesh_with_report().map(|(m, _)| m)
+        crate::mesher::mesh_only(self)
     }
 
     /// Meshes the geometry and returns the quality report with the mesh.

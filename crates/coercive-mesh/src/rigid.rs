@@ -86,7 +86,10 @@ impl RigidMesher {
     /// [`MeshError::RigidGroup`] for an unknown group name or a group overlapping the fixed
     /// geometry; [`MeshError::TooManyTriangles`] as for [`Geometry::mesh`].
     pub fn mesh_at(&self, placements: &[(&str, Placement)]) -> Result<Mesh, MeshError> {
-        self.mesh_at_with_report(placements).map(|(m, _)| m)
+        crate::mesher::cdt::guarded("meshing around rigid groups", || {
+            crate::mesher::rigid::mesh_at(&self.inner, placements, false)
+        })?
+        .map(|(m, _)| m)
     }
 
     /// As [`RigidMesher::mesh_at`], with the quality report of the whole mesh.
@@ -98,8 +101,14 @@ impl RigidMesher {
         placements: &[(&str, Placement)],
     ) -> Result<(Mesh, crate::QualityReport), MeshError> {
         crate::mesher::cdt::guarded("meshing around rigid groups", || {
-            crate::mesher::rigid::mesh_at(&self.inner, placements)
+            crate::mesher::rigid::mesh_at(&self.inner, placements, true)
         })?
+        .and_then(|(m, r)| {
+            r.map(|r| (m, r))
+                .ok_or_else(|| MeshError::TriangulationFailed {
+                    what: "no quality report".into(),
+                })
+        })
     }
 
     /// Number of nodes belonging to the rigid groups: nodes `0..n` of every mesh returned by

@@ -39,7 +39,20 @@ pub(crate) fn mesh_geometry(g: &Geometry) -> Result<(Mesh, QualityReport), MeshE
     cdt::guarded("meshing", || {
         let stage = Staged::new(g)?;
         let fine = stage.triangulate(&[])?;
-        Ok(stage.output(g, fine, None))
+        let (mesh, report) = stage.output(g, fine, None, true);
+        let report = report.ok_or_else(|| MeshError::TriangulationFailed {
+            what: "no quality report".into(),
+        })?;
+        Ok((mesh, report))
+    })?
+}
+
+/// Meshes a geometry without computing the quality report.
+pub(crate) fn mesh_only(g: &Geometry) -> Result<Mesh, MeshError> {
+    cdt::guarded("meshing", || {
+        let stage = Staged::new(g)?;
+        let fine = stage.triangulate(&[])?;
+        Ok(stage.output(g, fine, None, false).0)
     })?
 }
 
@@ -148,13 +161,21 @@ impl Staged {
                         spade::handles::FixedVertexHandle::from_index(p.a as usize),
                         spade::handles::FixedVertexHandle::from_index(p.b as usize),
                     )
-                    .expect("a constraint piece is an edge of the triangulation");
-                (
+                    .ok_or_else(|| {
+                        let q = prep.points[p.a as usize];
+                        MeshError::TriangulationFailed {
+                            what: format!(
+                                "the curve piece from ({}, {}) passes through another point",
+                                q.x, q.y
+                            ),
+                        }
+                    })?;
+                Ok((
                     e.face().as_inner().map_or(0, |f| *f.data()),
                     e.rev().face().as_inner().map_or(0, |f| *f.data()),
-                )
+                ))
             })
-            .collect();
+            .collect::<Result<_, MeshError>>()?;
         let piece_meshed: Vec<bool> = sides
             .iter()
             .map(|&(l, r)| meshed[l as usize] || meshed[r as usize])
@@ -574,7 +595,8 @@ impl Staged {
         g: &Geometry,
         fine: Fine,
         rigid: Option<&RigidPart>,
-    ) -> (Mesh, QualityReport) {
+        want_report: bool,
+    ) -> (Mesh, Option<QualityReport>) {
         let cdt = &fine.cdt;
         let nv = cdt.num_vertices();
         // Region ids: meshed regions in geometry order.
@@ -709,7 +731,11 @@ impl Staged {
                 second: p.second,
             })
             .collect();
-        let small = self.small_input_angles(&fine);
+        let small = if want_report {
+            self.small_input_angles(&fine)
+        } else {
+            Vec::new()
+        };
         let mesh = Mesh::from_parts_unchecked(
             vertices,
             triangles,
@@ -724,12 +750,14 @@ impl Staged {
             .filter(|r| !r.hole)
             .map(|r| r.size.unwrap_or(f64::INFINITY))
             .collect();
-        let report = crate::quality::compute(
-            &mesh,
-            |p, r| self.size.at(p).min(cap_of_region[r.index()]),
-            self.min_angle_deg,
-            small,
-        );
+        let report = want_report.then(|| {
+            crate::quality::compute(
+                &mesh,
+                |p, r| self.size.at(p).min(cap_of_region[r.index()]),
+                self.min_angle_deg,
+                small,
+            )
+        });
         (mesh, report)
     }
 

@@ -277,7 +277,8 @@ fn segment_distance(a: Point2, b: Point2, c: Point2, d: Point2) -> f64 {
 pub(crate) fn mesh_at(
     p: &Prepared,
     placements: &[(&str, Placement)],
-) -> Result<(Mesh, QualityReport), MeshError> {
+    want_report: bool,
+) -> Result<(Mesh, Option<QualityReport>), MeshError> {
     let mut pl = vec![Placement::default(); p.group_names.len()];
     for (name, placement) in placements {
         let Some(k) = p.group_names.iter().position(|n| n == name) else {
@@ -444,5 +445,5 @@ pub(crate) fn mesh_at(
         cdt_to_group,
         piece_nodes: &p.piece_nodes,
     };
-    Ok(p.staged.output(&p.geometry, fine, Some(&part)))
+    Ok(p.staged.output(&p.geometry, fine, Some(&part), want_report))
 }
