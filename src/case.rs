@@ -1624,6 +1624,27 @@ mover = ["magnet"]
         assert!(case.section("unknown").is_empty());
     }
 
+    proptest::proptest! {
+        #![proptest_config(proptest::prelude::ProptestConfig::with_cases(300))]
+        /// Damaged case files (a slice replaced by random TOML-ish text) never panic the
+        /// reader: they read, or fail with a typed error.
+        #[test]
+        fn damaged_files_never_panic(
+            start in 0usize..2000,
+            len in 0usize..40,
+            junk in "[a-z0-9_=\\[\\]{}\",. \n-]{0,30}",
+        ) {
+            let start = start.min(SMALL.len());
+            let end = (start + len).min(SMALL.len());
+            if SMALL.is_char_boundary(start) && SMALL.is_char_boundary(end) {
+                let text = format!("{}{}{}", &SMALL[..start], junk, &SMALL[end..]);
+                if let Ok(case) = Case::from_toml_str(&text) {
+                    case.geometry().unwrap();
+                }
+            }
+        }
+    }
+
     #[test]
     fn position_counts_lines_and_characters() {
         let s = "ab\ncµd\n";

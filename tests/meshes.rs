@@ -3,7 +3,7 @@
 
 use std::path::PathBuf;
 
-use coercive::case::Case;
+use coercive::case::{geometry_to_toml, Case};
 use coercive::mesh::{Placement, Point2};
 
 fn case_files() -> Vec<PathBuf> {
@@ -214,5 +214,18 @@ fn rigid_groups_of_the_bench_geometries_move() {
         }
         let t = rigid.group_triangle_count();
         assert_eq!(&drawn.triangles()[..t], &moved.triangles()[..t], "{file}");
+    }
+}
+
+#[test]
+fn every_case_geometry_round_trips_through_toml() {
+    for path in case_files() {
+        let geometry = Case::from_file(&path).unwrap().geometry().unwrap();
+        let text = geometry_to_toml(&geometry).unwrap();
+        let back = Case::from_toml_str(&text)
+            .unwrap_or_else(|e| panic!("{}: {e}", path.display()))
+            .geometry()
+            .unwrap();
+        assert_eq!(back, geometry, "{}", path.display());
     }
 }
