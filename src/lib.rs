@@ -5,3 +5,5 @@ pub use coercive_mesh as mesh;
 pub use coercive_post as post;
 
 pub mod case;
+pub mod solve;
+pub mod study;
