@@ -6,4 +6,3 @@ pub use coercive_post as post;
 
 pub mod case;
 pub mod solve;
-pub mod study;
