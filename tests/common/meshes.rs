@@ -323,3 +323,71 @@ pub fn join(parts: &[Vec<f64>]) -> Vec<f64> {
     }
     out
 }
+
+/// Joins two meshes into one (the second shifted by `shift`, m), keeping every region (regions
+/// of the same name are merged), prefixing curve names with `first_prefix` and
+/// `second_prefix`, and adding a curve pair between curve `first_curve` of the first mesh and
+/// curve `second_curve` of the second (names before prefixing).
+pub fn join_meshes(
+    first: &Mesh,
+    first_prefix: &str,
+    second: &Mesh,
+    second_prefix: &str,
+    shift: [f64; 2],
+    first_curve: &str,
+    second_curve: &str,
+) -> Mesh {
+    let n1 = first.vertices().len() as u32;
+    let mut vertices = first.vertices().to_vec();
+    vertices.extend(
+        second
+            .vertices()
+            .iter()
+            .map(|p| Point2::new(p.x + shift[0], p.y + shift[1])),
+    );
+    let mut triangles = first.triangles().to_vec();
+    triangles.extend(
+        second
+            .triangles()
+            .iter()
+            .map(|t| t.map(|v| VertexId(v.0 + n1))),
+    );
+    let mut regions = first.regions().to_vec();
+    let mut tri_regions = first.triangle_regions().to_vec();
+    for r in second.triangle_regions() {
+        let name = &second.regions()[r.index()].name;
+        let id = match regions.iter().position(|x| &x.name == name) {
+            Some(i) => i,
+            None => {
+                regions.push(second.regions()[r.index()].clone());
+                regions.len() - 1
+            }
+        };
+        tri_regions.push(RegionId(id as u32));
+    }
+    let rename = |c: &MeshCurve, prefix: &str, offset: u32| MeshCurve {
+        name: c.name.as_ref().map(|n| format!("{prefix}{n}")),
+        nodes: c.nodes.iter().map(|v| VertexId(v.0 + offset)).collect(),
+    };
+    let mut curves: Vec<MeshCurve> = first
+        .curves()
+        .iter()
+        .map(|c| rename(c, first_prefix, 0))
+        .collect();
+    let c1 = first.curves_named(first_curve)[0];
+    let c2 = second.curves_named(second_curve)[0];
+    let n_first_curves = curves.len() as u32;
+    curves.extend(second.curves().iter().map(|c| rename(c, second_prefix, n1)));
+    Mesh::from_parts(
+        vertices,
+        triangles,
+        tri_regions,
+        regions,
+        curves,
+        vec![MeshCurvePair {
+            first: c1,
+            second: CurveId(c2.0 + n_first_curves),
+        }],
+    )
+    .expect("joined mesh is valid")
+}
