@@ -96,6 +96,9 @@ fn a_rotated_rotor_keeps_its_nodes() {
     g.add_circle(o, 0.03);
     g.add_circle(o, 0.02);
     g.add_rectangle(Point2::new(0.005, -0.004), Point2::new(0.015, 0.004));
+    // An off-centre vent hole in the rotor: it turns with the rotor.
+    g.add_circle(Point2::new(-0.01, 0.008), 0.003);
+    g.add_hole("vent", Point2::new(-0.01, 0.008));
     g.add_region("stator", Point2::new(0.04, 0.0));
     g.add_region("gap", Point2::new(0.025, 0.0));
     g.add_region("rotor", Point2::new(-0.01, 0.0));
@@ -120,13 +123,32 @@ fn a_rotated_rotor_keeps_its_nodes() {
     }
     let nt = rigid.group_triangle_count();
     assert_eq!(&m0.triangles()[..nt], &m1.triangles()[..nt]);
-    // Areas unchanged by the rotation (the rotor's polygon is moved rigidly).
+    // Areas unchanged by the rotation (the rotor's polygon is moved rigidly), and the
+    // vent stays empty: all areas sum to the same total in both meshes.
     let rotor = m0.region_by_name("rotor").unwrap();
     assert_relative_eq!(
         m0.region_area(rotor),
         m1.region_area(rotor),
         max_relative = 1e-12
     );
+    let total = |m: &coercive_mesh::Mesh| -> f64 {
+        (0..m.regions().len())
+            .map(|r| m.region_area(RegionId(r as u32)))
+            .sum()
+    };
+    assert_relative_eq!(total(&m0), total(&m1), max_relative = 1e-12);
+    assert!(m1.region_by_name("vent").is_none());
+    // No triangle of the mesh lies in the moved vent.
+    let vent = Point2::new(
+        -0.01 * a.cos() - 0.008 * a.sin(),
+        -0.01 * a.sin() + 0.008 * a.cos(),
+    );
+    for t in 0..m1.triangles().len() {
+        assert!(
+            common::centroid(&m1, t).distance(vent) > 0.0029,
+            "triangle {t} in the vent"
+        );
+    }
 }
 
 #[test]

@@ -138,13 +138,46 @@ pub(crate) fn prepare(g: &Geometry) -> Result<Prepared, MeshError> {
     tris.sort_unstable_by_key(|(t, _)| *t);
     let (gtris, gtri_regions): (Vec<_>, Vec<_>) = tris.into_iter().unzip();
 
-    // Outline edges: a group face on the left, anything else on the right.
+    // Holes surrounded by a group move with it: every face of such a hole borders only
+    // the hole itself or that group.
+    let mut hole_group: Vec<Option<usize>> = vec![None; g.regions.len() + 1];
+    for (_, lab, f) in &faces {
+        let gi = group_of_label[*lab].unwrap_or(0);
+        for e in cdt.face(*f).adjacent_edges() {
+            if let Some(o) = e.rev().face().as_inner() {
+                let l = *o.data() as usize;
+                if l > 0 && g.regions[l - 1].hole {
+                    hole_group[l] = Some(gi);
+                }
+            }
+        }
+    }
+    for f in cdt.inner_faces() {
+        let l = *f.data() as usize;
+        let Some(gi) = hole_group[l] else { continue };
+        for e in f.adjacent_edges() {
+            let other = e.rev().face().as_inner().map_or(0, |o| *o.data() as usize);
+            if other != l && group_of_label[other] != Some(gi) {
+                let q = pt(e.from().position());
+                return Err(rigid_err(
+                    &g.rigid_groups[gi].name,
+                    format!(
+                        "hole \"{}\" borders both the group and other parts (near ({}, {}))",
+                        g.regions[l - 1].name,
+                        q.x,
+                        q.y
+                    ),
+                ));
+            }
+        }
+    }
+    // Outline edges: a group face on the left, anything else (but its holes) on the right.
     let mut next: BTreeMap<u32, u32> = BTreeMap::new();
     for (_, lab, f) in &faces {
         let gi = group_of_label[*lab].unwrap_or(0);
         for e in cdt.face(*f).adjacent_edges() {
             let other = e.rev().face().as_inner().map(|o| *o.data() as usize);
-            if other.and_then(|l| group_of_label[l]) == Some(gi) {
+            if other.and_then(|l| group_of_label[l].or(hole_group[l])) == Some(gi) {
                 continue;
             }
             let (a, b) = (gid[e.from().fix().index()], gid[e.to().fix().index()]);
@@ -219,7 +252,7 @@ pub(crate) fn prepare(g: &Geometry) -> Result<Prepared, MeshError> {
         .map(|&v| v != NONE && gid[v as usize] != u32::MAX)
         .collect();
     let active_seed: Vec<bool> = (0..g.regions.len())
-        .map(|k| group_of_label[k + 1].is_none())
+        .map(|k| group_of_label[k + 1].is_none() && hole_group[k + 1].is_none())
         .collect();
     Ok(Prepared {
         geometry: g.clone(),
