@@ -19,6 +19,12 @@
 //!   error ([`MeshError::AreaWithoutRegion`]); the area outside every closed outline is not
 //!   meshed.
 //! - **Sizes are lengths** (m): the target edge length of triangles.
+//! - **Curves outside every region** (construction lines) are not meshed: their node
+//!   lists in the [`Mesh`] are empty. Points on no curve are kept as mesh nodes when they
+//!   lie inside a region.
+//! - **Exact duplicate segments** (two segments joining the same two points) are refused
+//!   ([`MeshError::DuplicateSegment`]); [`Geometry::add_polygon`] and
+//!   [`Geometry::add_rectangle`] reuse an existing segment instead of adding a duplicate.
 
 use serde::{Deserialize, Serialize};
 

@@ -6,7 +6,13 @@
 //!   group's node coordinates are the original ones moved by the placement, in the same
 //!   order, and they come first in the mesh's numbering (then the group's triangles come
 //!   first too), so per-triangle state (e.g. magnet hysteresis) stays valid.
-//! - The group's outline is fixed: refinement of the surrounding air never splits it.
+//! - The group's outline is fixed: refinement of the surrounding air never splits it (the
+//!   first mesh refines it freely, so it suits both sides). Next to it the air may keep a
+//!   few triangles below the requested minimum angle (points are inserted beside the
+//!   fixed outline instead of splitting it).
+//! - Holes surrounded by a group move with it; a hole bordering both a group and other
+//!   parts is refused. Regions that are not in a group, even enclosed by one, stay where
+//!   they are drawn (their point must stay uncovered).
 //! - A moved group must stay separated from the fixed geometry by air: if its outline
 //!   crosses or touches a fixed curve, or leaves the meshed area,
 //!   [`MeshError::RigidGroup`] names the group and the place.
