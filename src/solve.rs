@@ -404,6 +404,118 @@ pub fn model_from_case(case: &Case, mesh: Mesh) -> Result<Model, SetupError> {
     Ok(builder.build()?)
 }
 
+/// The summary of a solved case that `coercive solve` prints (SI units).
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct SolveSummary {
+    /// Free unknowns of the linear systems.
+    pub unknowns: usize,
+    /// Mesh triangles.
+    pub triangles: usize,
+    /// Element order (1 or 2).
+    pub element_order: u8,
+    /// `planar` or `axisymmetric`.
+    pub formulation: &'static str,
+    /// Planar stack depth (m), if planar.
+    pub depth_m: Option<f64>,
+    /// Newton iterations (1 for linear models).
+    pub newton_iterations: usize,
+    /// Final relative residual norm.
+    pub relative_residual: f64,
+    /// Stored energy: J/m of depth for planar models, J for axisymmetric ones.
+    pub energy: f64,
+    /// Co-energy, same unit as `energy`.
+    pub coenergy: f64,
+    /// Unit of `energy` and `coenergy`: "J/m" or "J".
+    pub energy_unit: &'static str,
+    /// Peak |B| (T) per region, in mesh order.
+    pub peak_flux_density_t: Vec<(String, f64)>,
+    /// Wall-clock times (s): set-up (layout, pattern, ordering), assembly, factorisation,
+    /// triangular solves.
+    pub setup_s: f64,
+    /// Assembly time (s).
+    pub assembly_s: f64,
+    /// Factorisation time (s).
+    pub factorisation_s: f64,
+    /// Triangular solve time (s).
+    pub solve_s: f64,
+}
+
+/// Solves `model` with default settings and summarises the result.
+///
+/// # Errors
+/// The solver's [`FemError`].
+pub fn solve_and_summarise(
+    model: &Model,
+) -> Result<(coercive_fem::Solution, SolveSummary), FemError> {
+    let t0 = std::time::Instant::now();
+    let solver = coercive_fem::Solver::new(model)?;
+    let setup_s = t0.elapsed().as_secs_f64();
+    let sol = solver.solve(model, &coercive_fem::NewtonSettings::default())?;
+    let report = sol.newton_report();
+    let planar = matches!(model.formulation(), Formulation::Planar { .. });
+    let summary = SolveSummary {
+        unknowns: solver.unknowns(),
+        triangles: model.mesh().triangles().len(),
+        element_order: match model.order() {
+            ElementOrder::P1 => 1,
+            _ => 2,
+        },
+        formulation: if planar { "planar" } else { "axisymmetric" },
+        depth_m: sol.depth_m(),
+        newton_iterations: report.iterations,
+        relative_residual: report.residual_norms.last().copied().unwrap_or(0.0),
+        energy: sol.energy(),
+        coenergy: sol.coenergy(),
+        energy_unit: if planar { "J/m" } else { "J" },
+        peak_flux_density_t: model
+            .mesh()
+            .regions()
+            .iter()
+            .zip(sol.region_peak_flux_densities())
+            .map(|(r, b)| (r.name.clone(), *b))
+            .collect(),
+        setup_s,
+        assembly_s: report.times.assembly_s,
+        factorisation_s: report.times.factorisation_s,
+        solve_s: report.times.solve_s,
+    };
+    Ok((sol, summary))
+}
+
+impl std::fmt::Display for SolveSummary {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        writeln!(
+            f,
+            "{} model, P{} elements: {} triangles, {} unknowns",
+            self.formulation, self.element_order, self.triangles, self.unknowns
+        )?;
+        writeln!(
+            f,
+            "Newton iterations: {} (relative residual {:.2e})",
+            self.newton_iterations, self.relative_residual
+        )?;
+        writeln!(f, "energy:    {:.6e} {}", self.energy, self.energy_unit)?;
+        writeln!(f, "co-energy: {:.6e} {}", self.coenergy, self.energy_unit)?;
+        if let Some(d) = self.depth_m {
+            writeln!(
+                f,
+                "for the stack depth {d} m: energy {:.6e} J, co-energy {:.6e} J",
+                self.energy * d,
+                self.coenergy * d
+            )?;
+        }
+        writeln!(f, "peak |B| per region:")?;
+        for (name, b) in &self.peak_flux_density_t {
+            writeln!(f, "  {name:<20} {b:.4} T")?;
+        }
+        write!(
+            f,
+            "time: set-up {:.3} s, assembly {:.3} s, factorisation {:.3} s, solves {:.3} s",
+            self.setup_s, self.assembly_s, self.factorisation_s, self.solve_s
+        )
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -447,7 +559,10 @@ curve = "outer"
         let (mesh, _) = case.mesh_with_report(&geometry).unwrap();
         let model = model_from_case(&case, mesh).unwrap();
         assert_eq!(model.windings()[0].turns, 1.0);
-        let sol = model.solve().unwrap();
+        let (sol, summary) = solve_and_summarise(&model).unwrap();
+        assert!(summary.newton_iterations >= 2);
+        assert_eq!(summary.energy_unit, "J/m");
+        assert!(summary.to_string().contains("peak |B| per region"));
         let a_at = |p: [f64; 2]| {
             (0..model.mesh().triangles().len())
                 .find_map(|t| {
