@@ -14,7 +14,8 @@ pub trait Tabular: Serialize {
     fn csv_rows(&self) -> Vec<String>;
 
     /// CSV text: comma separated, `\n` line ends, text fields quoted where needed, numbers in
-    /// Rust's shortest round-trip form.
+    /// Rust's shortest round-trip form, missing values (e.g. per-metre columns of an
+    /// axisymmetric model) as empty fields.
     fn to_csv(&self) -> String {
         let mut out = self
             .header()
@@ -51,9 +52,19 @@ pub(crate) fn csv_field(s: &str) -> String {
     }
 }
 
-/// One CSV line: the numbers, with the text fields inserted before number `at`.
+/// One CSV line: the numbers (NaN as an empty field), with the text fields inserted before
+/// number `at`.
 pub(crate) fn csv_line(texts: &[String], numbers: &[f64], at: usize) -> String {
-    let mut fields: Vec<String> = numbers.iter().map(|v| format!("{v}")).collect();
+    let mut fields: Vec<String> = numbers
+        .iter()
+        .map(|v| {
+            if v.is_nan() {
+                String::new()
+            } else {
+                format!("{v}")
+            }
+        })
+        .collect();
     let at = at.min(fields.len());
     for (k, t) in texts.iter().enumerate() {
         fields.insert(at + k, csv_field(t));
