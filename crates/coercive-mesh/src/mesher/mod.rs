@@ -23,8 +23,8 @@ use std::collections::HashMap;
 use spade::{PositionInTriangulation, Triangulation};
 
 use crate::{
-    CurveId, Geometry, Mesh, MeshCurve, MeshCurvePair, MeshError, MeshRegion, Point2,
-    QualityReport, RegionId, SmallInputAngle, VertexId,
+    Geometry, Mesh, MeshCurve, MeshCurvePair, MeshError, MeshRegion, Point2, QualityReport,
+    RegionId, SmallInputAngle, VertexId,
 };
 
 use cdt::{pt, sp, Cdt, Refiner, Seed, NONE};
@@ -1073,9 +1073,4 @@ fn hilbert_d(n: u32, mut x: u32, mut y: u32) -> u64 {
         s /= 2;
     }
     d
-}
-
-#[allow(dead_code)]
-fn curve_id(i: usize) -> CurveId {
-    CurveId(i as u32)
 }
