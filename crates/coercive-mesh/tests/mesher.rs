@@ -527,3 +527,44 @@ fn a_thirty_degree_minimum_angle_is_met() {
     );
     assert_eq!(report.triangles_below_min_angle, 0);
 }
+
+#[test]
+fn curve_pair_with_opposite_directions_matches_from_each_start() {
+    // The same sector, but the second side drawn from the outer arc inwards (as for an
+    // anti-periodic pairing drawn the other way): node i of the second curve, counted from
+    // its start, matches node i of the first, counted from its start.
+    let mut g = Geometry::new();
+    let (r0, r1) = (0.02, 0.05);
+    let ang = 45f64.to_radians();
+    let o = Point2::new(0.0, 0.0);
+    let p0 = g.add_point(Point2::new(r0, 0.0));
+    let p1 = g.add_point(Point2::new(r1, 0.0));
+    let q0 = g.add_point(Point2::new(r0 * ang.cos(), r0 * ang.sin()));
+    let q1 = g.add_point(Point2::new(r1 * ang.cos(), r1 * ang.sin()));
+    let first = g.add_segment(p0, p1);
+    g.add_arc(p1, q1, o);
+    let second = g.add_segment(q1, q0);
+    g.add_arc(p0, q0, o);
+    g.add_curve_pair(first, second);
+    g.add_point_with_size(Point2::new(0.045, 0.003), 0.0004);
+    g.add_region("iron", Point2::new(0.035, 0.01));
+    g.set_settings(settings(0.004));
+    let (m, report) = g.mesh_with_report().unwrap();
+    m.sanity_check().unwrap();
+    let (a, b) = (m.curve_nodes(first), m.curve_nodes(second));
+    assert_eq!(a.len(), b.len());
+    // Matching is by position along each curve from its own start (the documented
+    // contract): node i of both curves lies at the same distance from the curve's start.
+    let (s1, s2) = (m.vertex(a[0]), m.vertex(b[0]));
+    assert_eq!(s1, Point2::new(r0, 0.0));
+    assert_eq!(s2, Point2::new(r1 * ang.cos(), r1 * ang.sin()));
+    for i in 0..a.len() {
+        let (d1, d2) = (m.vertex(a[i]).distance(s1), m.vertex(b[i]).distance(s2));
+        assert!((d1 - d2).abs() < 1e-12, "node {i}: {d1} vs {d2}");
+    }
+    assert!(
+        report.min_angle_deg >= 28.0 - 1e-9,
+        "{}",
+        report.min_angle_deg
+    );
+}
