@@ -410,6 +410,7 @@ pub fn field_map_svg(
                 }
             }
             if !d.is_empty() {
+                halo(&mut out, &d, 15.0);
                 let _ = writeln!(
                     out,
                     "<path transform=\"scale(0.1)\" fill=\"none\" stroke=\"#111111\" stroke-width=\"8\" stroke-linejoin=\"round\" d=\"{}\"/>",
@@ -453,6 +454,7 @@ pub fn field_map_svg(
             }
         }
         if !d.is_empty() {
+            halo(&mut out, &d, 20.0);
             let _ = writeln!(
                 out,
                 "<path transform=\"scale(0.1)\" fill=\"none\" stroke=\"#000000\" stroke-width=\"12\" stroke-linejoin=\"round\" d=\"{}\"/>",
@@ -537,6 +539,16 @@ pub fn field_map_svg(
     let _ = writeln!(out, "<desc>{}</desc>", escape("Coercive field map"));
     out.push_str("</svg>\n");
     Ok(out)
+}
+
+/// A translucent white line under a dark one, so that dark lines stay visible over the dark
+/// (low-field) end of the colour map; `width` in 0.1 px units.
+fn halo(out: &mut String, d: &PathData, width: f64) {
+    let _ = writeln!(
+        out,
+        "<path transform=\"scale(0.1)\" fill=\"none\" stroke=\"#ffffff\" stroke-opacity=\"0.45\" stroke-width=\"{width}\" stroke-linejoin=\"round\" d=\"{}\"/>",
+        d.as_str()
+    );
 }
 
 /// Contours of a piecewise-linear nodal field at `count` evenly spaced levels
