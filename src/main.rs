@@ -113,7 +113,7 @@ fn run_mesh(args: &MeshArgs) -> Result<(), String> {
 }
 
 /// The JSON report: the quality report's fields (SI units, angles in degrees) plus
-/// `region_triangles` (name to count), `case` and `mesh_seconds`.
+/// `region_triangles` (name to count), `case`, `mesh_seconds`, `curves` and `units`.
 fn json_report(path: &Path, mesh: &Mesh, report: &QualityReport, seconds: f64) -> String {
     let mut value = serde_json::to_value(report).expect("a quality report serialises");
     if let Some(obj) = value.as_object_mut() {
@@ -126,6 +126,10 @@ fn json_report(path: &Path, mesh: &Mesh, report: &QualityReport, seconds: f64) -
         obj.insert("case".into(), path.display().to_string().into());
         obj.insert("mesh_seconds".into(), seconds.into());
         obj.insert("curves".into(), mesh.curves().len().into());
+        obj.insert(
+            "units".into(),
+            serde_json::json!({"length": "m", "area": "m^2", "angle": "deg", "time": "s"}),
+        );
     }
     serde_json::to_string_pretty(&value).expect("JSON values serialise")
 }

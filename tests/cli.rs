@@ -37,6 +37,7 @@ fn mesh_prints_a_json_report_and_writes_the_drawing() {
     for name in ["conductor", "inner_air", "ring", "air"] {
         assert!(names.contains(&name), "{names:?}");
     }
+    assert_eq!(report["units"]["area"], "m^2");
     let sum: u64 = counts.values().map(|v| v.as_u64().unwrap()).sum();
     assert_eq!(sum, triangles);
     // The ring's area is pi (b^2 - a^2) = pi (20^2 - 10^2) mm^2 within the chord error
