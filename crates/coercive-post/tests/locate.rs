@@ -165,3 +165,33 @@ fn location_is_deterministic_across_builds_and_threads() {
         assert_eq!(a, b);
     }
 }
+
+#[test]
+fn a_large_mesh_built_on_one_or_many_threads_gives_the_same_answers() {
+    // 2 x 160 x 130 = 41,600 triangles: above the size where subtrees build in parallel.
+    let xs = p1_support::graded(0.0, 1.0, 160, 1.01);
+    let ys = p1_support::graded(0.0, 0.8, 130, 0.99);
+    let mesh = p1_support::tensor_mesh(&xs, &ys, &["a", "b"], |x, y| {
+        if (x - 0.5).hypot(y - 0.4) < 0.1 {
+            None
+        } else {
+            Some(usize::from(x > 0.7))
+        }
+    });
+    let many = PointLocator::new(mesh.clone());
+    let pool = rayon::ThreadPoolBuilder::new()
+        .num_threads(1)
+        .build()
+        .unwrap();
+    let one = pool.install(|| PointLocator::new(mesh.clone()));
+    for i in 0..3000 {
+        let p = [
+            1.02 * (i as f64 * 0.618_033_988_7).fract() - 0.01,
+            0.82 * (i as f64 * 0.414_213_562_3).fract() - 0.01,
+        ];
+        assert_eq!(many.try_locate(p), one.try_locate(p), "point {p:?}");
+        if i % 10 == 0 {
+            check_point(&mesh, &many, p);
+        }
+    }
+}
