@@ -486,7 +486,7 @@ fn toroid_inductance_with_stack_depth() {
         );
         // Polygonal rings (h = 0.5 mm on r = 20 mm: chord area error 1e-4) and P1 error.
         assert!(
-            (l - l_ref).abs() < 2e-3 * l_ref,
+            (l - l_ref).abs() < 1e-3 * l_ref,
             "{order:?}: {l} H vs {l_ref} H"
         );
         assert!(
