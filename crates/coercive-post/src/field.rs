@@ -190,6 +190,58 @@ impl<'a> FieldProbe<'a> {
         Ok(self.at(point)?.field_strength)
     }
 
+    /// The field at `point` evaluated in the region named `region`: on an interface (an edge
+    /// or vertex shared with other regions) this picks that region's side, where B and H may
+    /// differ from the other side's.
+    ///
+    /// # Errors
+    /// [`PostError::UnknownRegion`]; [`PostError::PointOutsideMesh`] if the point is not in
+    /// (or on the boundary of) a triangle of that region.
+    pub fn at_in_region(&self, point: [f64; 2], region: &str) -> Result<PointField, PostError> {
+        let id = self.region_id("field in a region", region)?;
+        let mesh = self.solution.model().mesh();
+        let best = self
+            .locator
+            .locate_all(point)
+            .into_iter()
+            .filter(|l| mesh.triangle_region(l.triangle) == id)
+            .max_by(|a, b| {
+                let m = |l: &Location| l.barycentric[0].min(l.barycentric[1]).min(l.barycentric[2]);
+                m(a).total_cmp(&m(b))
+                    .then(b.triangle.index().cmp(&a.triangle.index()))
+            })
+            .ok_or(PostError::PointOutsideMesh {
+                x: point[0],
+                y: point[1],
+            })?;
+        Ok(self.at_location(point, best))
+    }
+
+    /// The magnetic flux crossing the straight segment from `start` to `end` (m), counted
+    /// positive towards the left of the direction of travel (the segment's direction turned
+    /// by +90 degrees in the (x, y) or (r, z) plane), from the flux function alone (exact for
+    /// the discrete field, whatever the path between the two points):
+    /// - planar: A(start) - A(end) per metre of depth (Wb/m), times the depth in total (Wb);
+    /// - axisymmetric: 2 pi (r A_phi(end) - r A_phi(start)), the flux through the surface the
+    ///   segment sweeps around the axis (Wb).
+    ///
+    /// # Errors
+    /// [`PostError::PointOutsideMesh`] naming the point outside.
+    pub fn flux_between(&self, start: [f64; 2], end: [f64; 2]) -> Result<FluxCrossing, PostError> {
+        let a = self.at(start)?.flux_function;
+        let b = self.at(end)?.flux_function;
+        Ok(match self.solution.depth_m() {
+            Some(depth) => FluxCrossing {
+                per_metre_wb_per_m: Some(a - b),
+                total_wb: (a - b) * depth,
+            },
+            None => FluxCrossing {
+                per_metre_wb_per_m: None,
+                total_wb: 2.0 * std::f64::consts::PI * (b - a),
+            },
+        })
+    }
+
     /// The field at each of `points` (in parallel, results in input order).
     ///
     /// # Errors
@@ -521,6 +573,15 @@ pub(crate) fn polyline_samples(
         distances.push(s);
     }
     Ok((points, distances))
+}
+
+/// The flux crossing a segment (see [`FieldProbe::flux_between`]).
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct FluxCrossing {
+    /// Planar models: flux per metre of depth (Wb/m); `None` for axisymmetric ones.
+    pub per_metre_wb_per_m: Option<f64>,
+    /// Flux through the device (Wb).
+    pub total_wb: f64,
 }
 
 /// One sample of a path.

@@ -15,8 +15,8 @@ pub mod winding;
 pub use energy::{EnergyTable, RegionEnergy};
 pub use error::PostError;
 pub use field::{
-    FieldProbe, MagnetWorkingPoint, PathSample, PathSamples, PointField, RegionAverage,
-    RegionAverageTable, WorkingPointTable,
+    FieldProbe, FluxCrossing, MagnetWorkingPoint, PathSample, PathSamples, PointField,
+    RegionAverage, RegionAverageTable, WorkingPointTable,
 };
 pub use locate::{Location, PointLocator};
 pub use table::Tabular;

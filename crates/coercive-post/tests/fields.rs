@@ -233,6 +233,22 @@ fn region_averages_in_a_uniform_field_planar_and_axisymmetric() {
     // H = B / (mu0 mu_r) in the upper region (mu_r = 4), tangential B continuous.
     assert!(rel(upper.mean_field_strength[1], b0 / (4.0 * MU_0)) < 1e-9);
     assert!(rel(upper.peak_flux_density_norm, b0) < 1e-9);
+    // On the interface y = 0 the two sides differ in H (normal B continuous, mu_r 4 above).
+    let above = probe.at_in_region([0.13, 0.0], "upper").unwrap();
+    let below = probe.at_in_region([0.13, 0.0], "lower").unwrap();
+    assert!(rel(above.field_strength[1], b0 / (4.0 * MU_0)) < 1e-9);
+    assert!(rel(below.field_strength[1], b0 / MU_0) < 1e-9);
+    assert!(matches!(
+        probe.at_in_region([0.13, 0.03], "lower"),
+        Err(PostError::PointOutsideMesh { .. })
+    ));
+    // Flux crossing a segment: B0 times its length across the field (left of travel, +y for
+    // a segment along +x), none along it; per metre and for the 0.2 m depth.
+    let across = probe.flux_between([0.1, 0.0], [0.2, 0.0]).unwrap();
+    assert!(rel(across.per_metre_wb_per_m.unwrap(), b0 * 0.1) < 1e-9);
+    assert!(rel(across.total_wb, b0 * 0.1 * 0.2) < 1e-9);
+    let along = probe.flux_between([0.12, -0.04], [0.12, 0.04]).unwrap();
+    assert!(along.total_wb.abs() < 1e-12);
     // Axisymmetric: A_phi = B0 r / 2 gives B = (-dA/dz, dA/dr + A/r) = (0, B0); the volume of
     // the region r in [0.1, 0.2], z in [0, 0.05] is pi (0.2^2 - 0.1^2) 0.05.
     let mut axi = Model::builder(mesh, Formulation::Axisymmetric)
@@ -253,6 +269,10 @@ fn region_averages_in_a_uniform_field_planar_and_axisymmetric() {
     // flux function r A_phi = B0 r^2 / 2 (flux through the circle of radius r over 2 pi).
     let f = probe.at([0.13, 0.01]).unwrap();
     assert!(rel(f.flux_function, 0.5 * b0 * 0.13 * 0.13) < 1e-9);
+    // Flux through the annulus swept by a radial segment: B0 pi (r2^2 - r1^2).
+    let annulus = probe.flux_between([0.1, 0.01], [0.2, 0.01]).unwrap();
+    assert!(annulus.per_metre_wb_per_m.is_none());
+    assert!(rel(annulus.total_wb, b0 * PI * (0.04 - 0.01)) < 1e-9);
     assert!(matches!(
         probe.region_average("nowhere"),
         Err(PostError::UnknownRegion { region, .. }) if region == "nowhere"

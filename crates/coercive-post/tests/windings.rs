@@ -151,6 +151,8 @@ fn toroid_of_rectangular_section_from_core_flux_and_from_flux_linkage() {
     let l_core = n * phi / current;
     eprintln!("toroid: L from core flux {l_core:.6e} H (closed form {exact:.6e} H)");
     assert!(rel(l_core, exact) < 5e-4);
+    let crossing = probe.flux_between([a, 0.0], [b, 0.0]).unwrap();
+    assert!(rel(crossing.total_wb.abs(), phi.abs()) < 1e-12);
     // The flux linkage also counts the flux inside the finite winding layers. Exact planar
     // value for layers of uniform current density: L = mu0 N^2 h/(2 pi) integral f(r)^2/r dr
     // with f the enclosed fraction of the current (Ampere's law and W = L i^2/2).
