@@ -412,6 +412,18 @@ impl BhCurve {
         (nu, (d - nu) / b)
     }
 
+    /// Reluctivity nu = H/b (m/H) and slope dH/db (A/(m T)) at `b` = |B| >= 0 (T) with one
+    /// table look-up (what the tangent nu I + (dH/db - nu) B B^T/|B|^2 needs).
+    pub fn reluctivity_and_slope(&self, b: f64) -> (f64, f64) {
+        let b = b.abs();
+        if b < self.b[1] {
+            let (c1, c2, c3) = self.coefficients(0);
+            return (c1 + b * (c2 + b * c3), c1 + b * (2.0 * c2 + 3.0 * b * c3));
+        }
+        let (h, d) = self.h_of_b(b);
+        (h / b, d)
+    }
+
     /// Energy density w(b) = integral from 0 to b of H db' (J/m^3), exact for the interpolant.
     pub fn energy_density(&self, b: f64) -> f64 {
         let b = b.abs();

@@ -370,10 +370,9 @@ impl Material {
             ),
             Material::Soft(soft) => {
                 let bm = b[0].hypot(b[1]);
-                let (nu, _) = soft.curve.reluctivity(bm);
+                let (nu, slope) = soft.curve.reluctivity_and_slope(bm);
                 let mut dh_db = [[nu, 0.0], [0.0, nu]];
                 if bm > 0.0 {
-                    let (_, slope) = soft.curve.h_of_b(bm);
                     let u = [b[0] / bm, b[1] / bm];
                     let extra = slope - nu;
                     for (i, row) in dh_db.iter_mut().enumerate() {

@@ -116,6 +116,17 @@ fn tangent_matches_finite_differences_for_every_law() {
 }
 
 #[test]
+fn reluctivity_and_slope_agree_with_separate_evaluations() {
+    let curve = library::m19().curve().unwrap();
+    for &b in &[0.0, 1e-9, 0.01, 0.7, 1.5, 1.99, 2.5] {
+        let (nu, slope) = curve.reluctivity_and_slope(b);
+        let (nu2, _) = curve.reluctivity(b);
+        let (_, slope2) = curve.h_of_b(b);
+        assert!((nu - nu2).abs() <= 1e-12 * nu2 && (slope - slope2).abs() <= 1e-12 * slope2);
+    }
+}
+
+#[test]
 fn soft_tangent_is_smooth_at_zero_flux_density() {
     let m = m19();
     let at_zero = m.response([0.0, 0.0], [1.0, 0.0]);
