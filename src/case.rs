@@ -1335,7 +1335,7 @@ size = 0.25
 
 [[geometry.circles]]
 centre = "o"
-radius = 1.5
+radius = 0.8
 name = "hole_edge"
 
 [regions.air]
@@ -1348,7 +1348,7 @@ max_size = 0.5
 material = "N42"
 
 [regions.hole]
-at = [5, 5]
+at = [5, 5.5]
 hole = true
 
 [geometry.rigid_groups]
@@ -1372,7 +1372,7 @@ mover = ["magnet"]
         let case = Case::from_toml_str(SMALL).unwrap();
         assert_eq!(case.unit(), LengthUnit::Millimetre);
         let g = case.geometry().unwrap();
-        // 10 mm is the double nearest to 0.01 m; 1.5 mm radius gives the point at 6.5 mm.
+        // 10 mm is the double nearest to 0.01 m; a 0.8 mm radius gives the point at 5.8 mm.
         assert_eq!(g.points[1].position, Point2::new(0.01, 0.0));
         assert_eq!(g.points[2].size, Some(0.0005));
         assert_eq!(g.settings.max_size, Some(0.0025));
@@ -1381,7 +1381,7 @@ mover = ["magnet"]
         assert!(g
             .points
             .iter()
-            .any(|p| p.position == Point2::new(0.005 + 0.0015, 0.005)));
+            .any(|p| p.position == Point2::new(0.005 + 0.0008, 0.005)));
         assert_eq!(g.regions[1].size, Some(0.0005));
         // Other units: 12.5 cm, 12.5 um, 1 in = 25.4 mm (exact by definition).
         assert_eq!(LengthUnit::Centimetre.to_metres(12.5), 0.125);
@@ -1519,8 +1519,8 @@ mover = ["magnet"]
         for (from, to, needle) in [
             ("unit = \"mm\"", "unit = \"furlong\"", "unknown length unit"),
             (
-                "radius = 1.5",
-                "radius = -1.5",
+                "radius = 0.8",
+                "radius = -0.8",
                 "circle radius must be a positive length",
             ),
             (
@@ -1541,8 +1541,8 @@ mover = ["magnet"]
                 "must lie above and right of min",
             ),
             (
-                "at = [5, 5]\nhole = true",
-                "at = [5, 5]\nhole = true\nmaterial = \"x\"",
+                "at = [5, 5.5]\nhole = true",
+                "at = [5, 5.5]\nhole = true\nmaterial = \"x\"",
                 "is a hole",
             ),
         ] {
@@ -1612,6 +1612,48 @@ mover = ["magnet"]
             geometry_to_toml(&h),
             Err(CaseError::NotWritable { .. })
         ));
+    }
+
+    #[test]
+    fn mesher_errors_carry_the_position_of_the_item() {
+        // The example itself meshes.
+        let case = Case::from_toml_str(SMALL).unwrap();
+        let (mesh, _) = case.mesh_with_report(&case.geometry().unwrap()).unwrap();
+        assert_eq!(mesh.regions().len(), 2);
+        // A region point outside the drawing: the position of `[regions.lost]`'s name.
+        let text = format!("{SMALL}\n[regions.lost]\nat = [50, 50]\n");
+        let case = Case::from_toml_str(&text).unwrap();
+        let err = case
+            .mesh_with_report(&case.geometry().unwrap())
+            .unwrap_err();
+        let line = text.lines().position(|l| l == "[regions.lost]").unwrap() + 1;
+        match &err {
+            CaseError::Mesh {
+                source: MeshError::RegionNotClosed { region, .. },
+                position: Some(p),
+            } => {
+                assert_eq!(region, "lost");
+                assert_eq!(*p, Position { line, column: 10 });
+            }
+            other => panic!("{other:?}"),
+        }
+        assert!(err.to_string().contains(&format!("line {line}, column 10")));
+        // An arc whose ends are at different distances from its centre: the position of
+        // the arc's `from`.
+        let text =
+            format!("{SMALL}\n[[geometry.arcs]]\nfrom = \"a\"\nto = \"c\"\ncentre = [1, 0]\n");
+        let case = Case::from_toml_str(&text).unwrap();
+        let err = case
+            .mesh_with_report(&case.geometry().unwrap())
+            .unwrap_err();
+        let line = text.lines().position(|l| l == "from = \"a\"").unwrap() + 1;
+        match &err {
+            CaseError::Mesh {
+                source: MeshError::InconsistentArcRadii { .. },
+                position: Some(p),
+            } => assert_eq!(p.line, line),
+            other => panic!("{other:?}"),
+        }
     }
 
     #[test]
