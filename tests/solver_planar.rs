@@ -237,8 +237,9 @@ fn shell_coefficients(mu_r: f64, a: f64, b: f64) -> (f64, f64) {
         for row in 0..4 {
             if row != col {
                 let f = m[row][col] / m[col][col];
-                for k in col..5 {
-                    m[row][k] -= f * m[col][k];
+                let pivot_row = m[col];
+                for (x, p) in m[row].iter_mut().zip(pivot_row).skip(col) {
+                    *x -= f * p;
                 }
             }
         }
