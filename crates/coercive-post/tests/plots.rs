@@ -4,9 +4,10 @@
 
 use coercive_mesh::{structured::rectangle, Mesh, MeshRegion, RegionId};
 use coercive_post::plot::{
-    axisymmetric_flux_function, field_map_svg, table_csv, table_json, xy_chart_svg, ChartOptions,
-    FieldMapOptions, PlotError, Series, Table,
+    axisymmetric_flux_function, field_map_svg, table_csv, table_json, working_point_chart_svg,
+    working_point_series, xy_chart_svg, ChartOptions, FieldMapOptions, PlotError, Series, Table,
 };
+use coercive_post::MagnetWorkingPoint;
 
 fn parse(svg: &str) -> roxmltree::Document<'_> {
     roxmltree::Document::parse(svg).unwrap_or_else(|e| panic!("malformed SVG: {e}"))
@@ -372,4 +373,39 @@ fn tables_in_csv_and_json() {
     );
     let back: Table = serde_json::from_str(&table.to_json()).unwrap();
     assert_eq!(back, table);
+}
+
+#[test]
+fn working_point_chart_shows_recoil_and_load_lines() {
+    // NdFeB N42 nominal (Br 1.30 T, mu_rec 1.05): model coercivity Br/(mu_0 mu_rec).
+    let hc = 1.30 / (coercive_fem::MU_0 * 1.05);
+    // A working point on the recoil line at permeance coefficient 2: B = -2 mu_0 H and
+    // B = Br + mu_0 mu_rec H give H = -Br/(mu_0 (mu_rec + 2)).
+    let h = -1.30 / (coercive_fem::MU_0 * 3.05);
+    let b = -2.0 * coercive_fem::MU_0 * h;
+    let p = MagnetWorkingPoint {
+        region: "magnet & pole".into(),
+        remanence_t: 1.30,
+        model_coercivity_a_per_m: hc,
+        mean_flux_density_t: b,
+        min_flux_density_t: b - 0.1,
+        max_flux_density_t: b + 0.1,
+        mean_field_strength_a_per_m: h,
+        min_field_strength_a_per_m: h - 0.1 / (coercive_fem::MU_0 * 1.05),
+        max_field_strength_a_per_m: h + 0.1 / (coercive_fem::MU_0 * 1.05),
+        permeance_coefficient: 2.0,
+        weakest_point: [0.0, 0.0],
+    };
+    let series = working_point_series(std::slice::from_ref(&p));
+    assert_eq!(series.len(), 4);
+    assert_eq!(series[0].points, vec![(-hc * 1e-3, 0.0), (0.0, 1.30)]);
+    // The mean point lies on the recoil line.
+    let (x, y) = series[2].points[0];
+    assert!((y - (1.30 + coercive_fem::MU_0 * 1.05 * x * 1e3)).abs() < 1e-12);
+    let svg = working_point_chart_svg(&[p], &ChartOptions::default()).unwrap();
+    let doc = parse(&svg);
+    let texts: Vec<&str> = doc.descendants().filter_map(|n| n.text()).collect();
+    assert!(texts.contains(&"H along the easy axis (kA/m)"));
+    assert!(texts.contains(&"magnet & pole: mean working point"));
+    assert!(working_point_chart_svg(&[], &ChartOptions::default()).is_err());
 }

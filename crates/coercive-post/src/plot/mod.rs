@@ -10,6 +10,7 @@
 //!   preserved.
 //! - [`xy_chart_svg`]: axes with "nice" 1-2-5 ticks, grid, legend, several series with
 //!   markers, optional logarithmic x axis.
+//! - [`working_point_chart_svg`]: each magnet's recoil line, load line and working points.
 //! - [`table_csv`], [`table_json`], [`Table`]: the numbers behind every chart.
 //! - [`ColourMap`]: a perceptually uniform sequential colour map built in Oklab.
 
@@ -19,6 +20,7 @@ mod field_map;
 mod svg;
 mod table;
 mod ticks;
+mod working_points;
 
 pub use chart::{xy_chart_svg, ChartOptions, LineStyle, Marker, Series, SeriesStyle};
 pub use colour::{
@@ -27,6 +29,7 @@ pub use colour::{
 pub use field_map::{axisymmetric_flux_function, field_map_svg, FieldMapOptions};
 pub use table::{table_csv, table_json, Table};
 pub use ticks::{log_ticks, nice_ticks, Ticks};
+pub use working_points::{working_point_chart_svg, working_point_series};
 
 use thiserror::Error;
 
