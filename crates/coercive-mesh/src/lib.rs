@@ -17,7 +17,8 @@
 //!   curve's node list is a chain of mesh edges from its start to its end.
 //! - Minimum angle at least [`MeshSettings::min_angle_deg`] (default 28 degrees) except
 //!   next to input angles below it (listed in [`QualityReport::small_input_angles`]) and,
-//!   for rigid meshes, next to the fixed outlines of the moved groups.
+//!   for rigid meshes, a few triangles next to the fixed outlines of the moved groups
+//!   (counted in [`QualityReport::triangles_below_min_angle`]; see [`RigidMesher`]).
 //! - No triangle's longest edge exceeds the local size at its centroid (global, region,
 //!   curve and point sizes, the automatic gap size, all limited by the growth rate).
 //! - The same input gives the same mesh, bit for bit, whatever the thread count.

@@ -6,10 +6,17 @@
 //!   group's node coordinates are the original ones moved by the placement, in the same
 //!   order, and they come first in the mesh's numbering (then the group's triangles come
 //!   first too), so per-triangle state (e.g. magnet hysteresis) stays valid.
-//! - The group's outline is fixed: refinement of the surrounding air never splits it (the
-//!   first mesh refines it freely, so it suits both sides). Next to it the air may keep a
-//!   few triangles below the requested minimum angle (points are inserted beside the
-//!   fixed outline instead of splitting it).
+//! - The group's outline is fixed: refinement of the surrounding air never splits it. The
+//!   first mesh discretises the whole outline uniformly at the finest size found along it
+//!   at the drawn placement (so it is as fine everywhere as where it was closest to other
+//!   parts: a turning rotor), or finer with
+//!   [`Geometry::prepare_rigid_with_outline_size`] (a gap closing below the drawn one),
+//!   then refines it freely. Where a new point would encroach the fixed outline, the air
+//!   refinement inserts an off-centre of the bad triangle or the apex of a well-shaped
+//!   triangle on the outline edge instead, splitting the other curves in the way (not
+//!   below half the outline edge, which bounds the work). A few air triangles next to the
+//!   outline may still stay below the requested minimum angle; the quality report counts
+//!   them ([`crate::QualityReport::triangles_below_min_angle`]).
 //! - Holes surrounded by a group move with it; a hole bordering both a group and other
 //!   parts is refused. Regions that are not in a group, even enclosed by one, stay where
 //!   they are drawn (their point must stay uncovered).
@@ -78,8 +85,34 @@ impl Geometry {
     /// has no rigid group, a group names an unknown region, a region is in two groups, or a
     /// group touches the fixed geometry.
     pub fn prepare_rigid(&self) -> Result<RigidMesher, MeshError> {
+        self.prepare_rigid_inner(None)
+    }
+
+    /// As [`Geometry::prepare_rigid`], with the groups' outlines discretised no coarser
+    /// than `outline_size` (m). Choose it about as small as the narrowest gap the groups
+    /// will be placed at (an outline edge much longer than the gap facing it leaves no
+    /// room for well-shaped triangles, since the moved outline is never split).
+    ///
+    /// # Errors
+    /// As [`Geometry::prepare_rigid`], and [`MeshError::InvalidSize`] when `outline_size` is not
+    /// a positive finite length.
+    pub fn prepare_rigid_with_outline_size(
+        &self,
+        outline_size: f64,
+    ) -> Result<RigidMesher, MeshError> {
+        if !(outline_size.is_finite() && outline_size > 0.0) {
+            return Err(MeshError::InvalidSize {
+                item: "rigid group outline size".into(),
+                value: outline_size,
+                why: "must be a positive finite length (m)".into(),
+            });
+        }
+        self.prepare_rigid_inner(Some(outline_size))
+    }
+
+    fn prepare_rigid_inner(&self, outline_size: Option<f64>) -> Result<RigidMesher, MeshError> {
         crate::mesher::cdt::guarded("meshing rigid groups", || {
-            crate::mesher::rigid::prepare(self)
+            crate::mesher::rigid::prepare(self, outline_size)
         })?
         .map(|inner| RigidMesher { inner })
     }

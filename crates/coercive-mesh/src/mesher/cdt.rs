@@ -277,6 +277,8 @@ pub(crate) struct Refiner<'a> {
     pub max_triangles: usize,
     /// Shortest edge refinement will still shorten (m).
     pub min_edge: f64,
+    /// The requested minimum angle (degrees).
+    pub min_angle_deg: f64,
     faces: VecDeque<FixedFaceHandle<InnerTag>>,
     segs: VecDeque<FixedUndirectedEdgeHandle>,
 }
@@ -315,6 +317,7 @@ impl<'a> Refiner<'a> {
             max_vertices,
             max_triangles,
             min_edge,
+            min_angle_deg,
             faces: VecDeque::new(),
             segs: VecDeque::new(),
         }
@@ -500,7 +503,7 @@ impl<'a> Refiner<'a> {
                     if self.split_segment(e)? {
                         self.faces.push_back(f);
                     }
-                } else {
+                } else if !self.insert_off_centre(&p, kmin, c, lab, hint)? {
                     self.insert_beside_fixed(e, centroid, lab, hint)?;
                 }
             }
@@ -511,7 +514,9 @@ impl<'a> Refiner<'a> {
         // (or, for a fixed edge, insert a point beside it instead).
         if let Some(e) = self.encroached_by(g, c) {
             if self.is_fixed_edge(e) {
-                self.insert_beside_fixed(e, centroid, lab, hint)?;
+                if !self.insert_off_centre(&p, kmin, c, lab, hint)? {
+                    self.insert_beside_fixed(e, centroid, lab, hint)?;
+                }
             } else {
                 if self.split_segment(e)? {
                     self.faces.push_back(f);
@@ -525,9 +530,15 @@ impl<'a> Refiner<'a> {
     }
 
     /// A bad triangle near a fixed edge `e` (never split) whose circumcentre would encroach
-    /// it: insert the apex of the equilateral triangle on `e`, on the side of `towards`, if
-    /// that point lies in the same region and encroaches no curve edge; otherwise leave the
-    /// triangle as it is.
+    /// it: insert the apex of a well-shaped triangle on `e` (an off-centre in the sense of
+    /// Üngör, "Off-centers: a new type of Steiner points for computing size-optimal
+    /// quality-guaranteed Delaunay triangulations", LATIN 2004) on the side of `towards`.
+    /// The apex sits at the height of the equilateral triangle on `e`; where that point
+    /// would cross or encroach another curve, that curve is split instead (if it is not
+    /// fixed and not already shorter than half of `e`: this floor makes the process
+    /// terminate), and the apex is tried again at lower heights (down to the one giving
+    /// base angles of `min_angle`). Otherwise the triangle is left as it is (the quality
+    /// report counts it).
     fn insert_beside_fixed(
         &mut self,
         e: FixedUndirectedEdgeHandle,
@@ -536,6 +547,7 @@ impl<'a> Refiner<'a> {
         hint: FixedVertexHandle,
     ) -> Result<(), MeshError> {
         let [a, b] = self.cdt.undirected_edge(e).positions().map(pt);
+        let len = a.distance(b);
         let (dx, dy) = (b.x - a.x, b.y - a.y);
         let mid = Point2::new(0.5 * (a.x + b.x), 0.5 * (a.y + b.y));
         let side = if cross(a, b, towards) > 0.0 {
@@ -543,27 +555,117 @@ impl<'a> Refiner<'a> {
         } else {
             -1.0
         };
-        let k = side * 0.5 * 3f64.sqrt();
-        let q = Point2::new(mid.x - k * dy, mid.y + k * dx);
-        let g = match self.cdt.locate_with_hint(sp(q), hint) {
-            PositionInTriangulation::OnFace(g) => g,
-            _ => return Ok(()),
-        };
-        if *self.cdt.face(g).data() != lab || self.encroached_by(g, q).is_some() {
-            return Ok(());
+        // Heights as fractions of |e|: equilateral, then lower, down to base angles of
+        // atan(2 h / |e|) = min angle + 1 degree.
+        let lowest = 0.5 * (self.min_angle_deg + 1.0).to_radians().tan();
+        let heights = [0.5 * 3f64.sqrt(), 0.6, 0.45, lowest.min(0.45)];
+        for &hf in &heights {
+            let k = side * hf;
+            let q = Point2::new(mid.x - k * dy, mid.y + k * dx);
+            // A curve between the edge and the apex: split it if allowed, else try lower.
+            let start = Point2::new(mid.x + 1e-3 * (q.x - mid.x), mid.y + 1e-3 * (q.y - mid.y));
+            if let Some(c) = self.first_constraint_crossed(start, q) {
+                if c != e {
+                    if self.split_near_fixed(c, len)? {
+                        return Ok(());
+                    }
+                    continue;
+                }
+            }
+            let g = match self.cdt.locate_with_hint(sp(q), hint) {
+                PositionInTriangulation::OnFace(g) => g,
+                _ => continue,
+            };
+            if *self.cdt.face(g).data() != lab {
+                continue;
+            }
+            if let Some(c) = self.encroached_by(g, q) {
+                if c != e && self.split_near_fixed(c, len)? {
+                    return Ok(());
+                }
+                continue;
+            }
+            // Not too close to an existing vertex of the face it falls in.
+            let near = self
+                .cdt
+                .face(g)
+                .vertices()
+                .iter()
+                .map(|v| pt(v.position()).distance(q))
+                .fold(f64::INFINITY, f64::min);
+            if near < 0.4 * len {
+                continue;
+            }
+            return self.insert_interior(q, hint, lab);
         }
-        // Not too close to an existing vertex of the face it falls in.
-        let near = self
-            .cdt
-            .face(g)
-            .vertices()
-            .iter()
-            .map(|v| pt(v.position()).distance(q))
-            .fold(f64::INFINITY, f64::min);
-        if near < 0.5 * a.distance(b) {
-            return Ok(());
+        Ok(())
+    }
+
+    /// A bad triangle `p` (shortest edge opposite corner `kmin`) whose circumcentre `c`
+    /// would encroach a fixed edge: try off-centres instead (Üngör 2004): points on the
+    /// perpendicular bisector of the shortest edge, between its midpoint and `c`, at the
+    /// height of the equilateral triangle on that edge and lower. A candidate is inserted
+    /// if it lies in the same region, encroaches no curve edge and keeps at least 0.4 times
+    /// the shortest edge from the vertices of the face it falls in. Returns whether a point
+    /// was inserted.
+    fn insert_off_centre(
+        &mut self,
+        p: &[Point2; 3],
+        kmin: usize,
+        c: Point2,
+        lab: u32,
+        hint: FixedVertexHandle,
+    ) -> Result<bool, MeshError> {
+        let (u, v) = (p[(kmin + 1) % 3], p[(kmin + 2) % 3]);
+        let l = u.distance(v);
+        let m = Point2::new(0.5 * (u.x + v.x), 0.5 * (u.y + v.y));
+        let dc = m.distance(c);
+        if dc.is_nan() || dc <= 0.0 || l < self.min_edge {
+            return Ok(false);
         }
-        self.insert_interior(q, hint, lab)
+        let dir = Point2::new((c.x - m.x) / dc, (c.y - m.y) / dc);
+        for hf in [0.5 * 3f64.sqrt(), 0.7, 0.55] {
+            let d = (hf * l).min(dc);
+            let q = Point2::new(m.x + d * dir.x, m.y + d * dir.y);
+            let g = match self.cdt.locate_with_hint(sp(q), hint) {
+                PositionInTriangulation::OnFace(g) => g,
+                _ => continue,
+            };
+            if *self.cdt.face(g).data() != lab || self.encroached_by(g, q).is_some() {
+                continue;
+            }
+            let near = self
+                .cdt
+                .face(g)
+                .vertices()
+                .iter()
+                .map(|x| pt(x.position()).distance(q))
+                .fold(f64::INFINITY, f64::min);
+            if near < 0.4 * l {
+                continue;
+            }
+            self.insert_interior(q, hint, lab)?;
+            return Ok(true);
+        }
+        Ok(false)
+    }
+
+    /// Splits the constraint edge `c` met while placing a point beside a fixed edge of
+    /// length `fixed_len`, unless it is fixed or shorter than `fixed_len / 2` (then no split
+    /// can help that triangle). Returns whether it was split.
+    fn split_near_fixed(
+        &mut self,
+        c: FixedUndirectedEdgeHandle,
+        fixed_len: f64,
+    ) -> Result<bool, MeshError> {
+        if self.is_fixed_edge(c) {
+            return Ok(false);
+        }
+        let [p, q] = self.cdt.undirected_edge(c).positions().map(pt);
+        if p.distance(q) < 0.5 * fixed_len {
+            return Ok(false);
+        }
+        self.split_segment(c)
     }
 
     /// True when `u` and `v` lie on two different pieces that share a break point.

@@ -57,7 +57,50 @@ fn rigid_err(group: &str, why: String) -> MeshError {
     }
 }
 
-pub(crate) fn prepare(g: &Geometry) -> Result<Prepared, MeshError> {
+/// The geometry to mesh the groups in: a copy of `g` whose group outline curves are sized
+/// uniformly at the finest size found along any group outline at the drawn placement (so
+/// that, moved anywhere, the outline is as fine as where it was closest to other parts),
+/// and at most `outline_size` (m) when given.
+fn sized_for_moves(g: &Geometry, outline_size: Option<f64>) -> Result<Geometry, MeshError> {
+    let region_index = |name: &str| g.regions.iter().position(|r| r.name == name);
+    let mut in_group = vec![false; g.regions.len() + 1];
+    for grp in &g.rigid_groups {
+        for r in &grp.regions {
+            if let Some(k) = region_index(r) {
+                in_group[k + 1] = true;
+            }
+        }
+    }
+    let staged = Staged::new(g)?;
+    let fine = staged.triangulate(&[])?;
+    let mut h = outline_size.unwrap_or(f64::INFINITY);
+    let mut outline_curves = Vec::new();
+    for i in 0..staged.prep.pieces.len() {
+        let (l, r) = staged.sides[i];
+        if in_group[l as usize] == in_group[r as usize] {
+            continue;
+        }
+        outline_curves.extend(staged.prep.pieces[i].owners.iter().copied());
+        let cap = staged.cap[l as usize].min(staged.cap[r as usize]);
+        for v in staged.walk_piece(&fine, i) {
+            let q = pt(fine
+                .cdt
+                .vertex(spade::handles::FixedVertexHandle::from_index(v as usize))
+                .position());
+            h = h.min(staged.size.at(q)).min(cap);
+        }
+    }
+    let mut g2 = g.clone();
+    if h.is_finite() && h > 0.0 {
+        for c in outline_curves {
+            let curve = &mut g2.curves[c as usize];
+            curve.size = Some(curve.size.map_or(h, |s| s.min(h)));
+        }
+    }
+    Ok(g2)
+}
+
+pub(crate) fn prepare(g: &Geometry, outline_size: Option<f64>) -> Result<Prepared, MeshError> {
     if g.rigid_groups.is_empty() {
         return Err(rigid_err("", "the geometry has no rigid group".into()));
     }
@@ -75,7 +118,9 @@ pub(crate) fn prepare(g: &Geometry) -> Result<Prepared, MeshError> {
         }
     }
     // The first mesh refines the groups' outlines freely (quality on both sides); later
-    // meshes keep them fixed.
+    // meshes keep them fixed. The outlines are sized uniformly first (see sized_for_moves).
+    let sized = sized_for_moves(g, outline_size)?;
+    let g = &sized;
     let staged = Staged::new(g)?;
     let fine = staged.triangulate(&[])?;
     let cdt = &fine.cdt;
