@@ -47,7 +47,9 @@ impl Default for NewtonSettings {
     fn default() -> Self {
         Self {
             residual_tolerance: 1e-8,
-            update_tolerance: 1e-8,
+            // The update criterion lags one iteration behind the error (the last update is
+            // roughly the error of the previous iterate), so it is looser than the residual's.
+            update_tolerance: 1e-6,
             max_iterations: 30,
             line_search: true,
             max_line_search_evaluations: 8,
