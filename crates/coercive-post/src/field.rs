@@ -836,3 +836,24 @@ impl Tabular for WorkingPointTable {
             .collect()
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn polyline_samples_are_equally_spaced_by_arc_length_through_repeated_points() {
+        // An L-shaped path of length 3 + 4 = 7 with a repeated corner point.
+        let path = [[0.0, 0.0], [3.0, 0.0], [3.0, 0.0], [3.0, 4.0]];
+        let (points, distances) = polyline_samples(&path, 15).unwrap();
+        assert_eq!(points.len(), 15);
+        for (i, (p, d)) in points.iter().zip(&distances).enumerate() {
+            let s = 0.5 * i as f64;
+            assert!((d - s).abs() < 1e-12);
+            let expected = if s <= 3.0 { [s, 0.0] } else { [3.0, s - 3.0] };
+            assert!((p[0] - expected[0]).abs() < 1e-12 && (p[1] - expected[1]).abs() < 1e-12);
+        }
+        assert_eq!(points[14], [3.0, 4.0]);
+        assert!(polyline_samples(&[[0.0, f64::NAN], [1.0, 0.0]], 3).is_err());
+    }
+}

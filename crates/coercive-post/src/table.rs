@@ -71,3 +71,18 @@ pub(crate) fn csv_line(texts: &[String], numbers: &[f64], at: usize) -> String {
     }
     fields.join(",")
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn csv_lines_quote_text_and_leave_missing_numbers_empty() {
+        let line = csv_line(
+            &["a,b".into(), "say \"hi\"".into()],
+            &[1.5, f64::NAN, -2.0],
+            1,
+        );
+        assert_eq!(line, "1.5,\"a,b\",\"say \"\"hi\"\"\",,-2");
+    }
+}
