@@ -53,7 +53,11 @@ fn bench_peer(c: &mut Criterion) {
             group.sample_size(10);
             group.sampling_mode(SamplingMode::Flat);
             group.warm_up_time(Duration::from_millis(500));
-            group.measurement_time(Duration::from_secs(if n > 500_000 { 60 } else { 20 }));
+            group.measurement_time(Duration::from_secs(match n {
+                0..=150_000 => 10,
+                150_001..=500_000 => 20,
+                _ => 60,
+            }));
             group.bench_function(BenchmarkId::new("setup", &label), |b| {
                 b.iter(|| Solver::new(&model).expect("solver set-up"))
             });
