@@ -96,7 +96,8 @@ fn the_rotor_keeps_its_quality_at_every_angle() {
         println!("rotor {deg} deg: min angle {lo:.3} deg, {below} triangles below 28 deg");
         worst = (worst.0.min(lo), worst.1.max(below));
     }
-    // Measured: 21.8 to 25.1 deg, at most 5 of about 100 000 triangles below 28 deg.
+    // Measured: 21.4 to 28.0 deg (28.0 at 3.7, 11, 30 and 45 deg), at most 6 of about
+    // 100 000 triangles below 28 deg, all beside the rotor outline.
     assert!(worst.0 >= 21.0, "{worst:?}");
     assert!(worst.1 <= 8, "{worst:?}");
 }

@@ -21,6 +21,10 @@
 //!   (counted in [`QualityReport::triangles_below_min_angle`]; see [`RigidMesher`]).
 //! - No triangle's longest edge exceeds the local size at its centroid (global, region,
 //!   curve and point sizes, the automatic gap size, all limited by the growth rate).
+//! - Every node of an arc lies on its circle: refinement splits an arc edge at the point
+//!   of the arc over the chord point (it keeps the chord point only where that arc point
+//!   would leave the two triangles beside the edge, which needs another curve closer than
+//!   the sagitta).
 //! - The same input gives the same mesh, bit for bit, whatever the thread count.
 //! - Bad input gives a [`MeshError`] naming the item; a panic inside the triangulation
 //!   library is caught and returned as [`MeshError::TriangulationFailed`].

@@ -568,3 +568,37 @@ fn curve_pair_with_opposite_directions_matches_from_each_start() {
         report.min_angle_deg
     );
 }
+
+#[test]
+fn every_node_of_an_arc_lies_on_its_circle() {
+    // A disc in a box with a small size on the circle, so refinement splits arc edges too
+    // (encroachment by the fine interior); nodes of the arcs must lie on the circle.
+    let mut g = Geometry::new();
+    g.add_rectangle(Point2::new(-0.02, -0.02), Point2::new(0.02, 0.02));
+    let c = Point2::new(0.001, -0.0005);
+    let r = 0.012;
+    let arcs = g.add_circle(c, r);
+    g.add_region("air", Point2::new(-0.019, -0.019));
+    g.add_region("disc", c);
+    g.set_settings(MeshSettings {
+        max_size: Some(0.004),
+        ..MeshSettings::default()
+    });
+    // A fine point near the circle forces splits of its chords during refinement.
+    g.add_point_with_size(Point2::new(c.x + r * 0.95, c.y), 1e-4);
+    let m = g.mesh().unwrap();
+    m.sanity_check().unwrap();
+    let mut count = 0;
+    for a in arcs {
+        for &v in m.curve_nodes(a) {
+            let q = m.vertex(v);
+            let d = q.distance(c);
+            assert!(
+                (d - r).abs() <= 1e-12 * r,
+                "node {v:?} at {q:?}: {d} m from the centre"
+            );
+            count += 1;
+        }
+    }
+    assert!(count > 100, "{count}");
+}

@@ -279,6 +279,9 @@ pub(crate) struct Refiner<'a> {
     pub min_edge: f64,
     /// The requested minimum angle (degrees).
     pub min_angle_deg: f64,
+    /// Per piece: the circle (centre in m, radius in m) of an arc piece; split nodes go on
+    /// it. Missing entries are straight pieces.
+    pub arcs: Vec<Option<(Point2, f64)>>,
     faces: VecDeque<FixedFaceHandle<InnerTag>>,
     segs: VecDeque<FixedUndirectedEdgeHandle>,
 }
@@ -318,6 +321,7 @@ impl<'a> Refiner<'a> {
             max_triangles,
             min_edge,
             min_angle_deg,
+            arcs: Vec::new(),
             faces: VecDeque::new(),
             segs: VecDeque::new(),
         }
@@ -880,7 +884,27 @@ impl<'a> Refiner<'a> {
             de.face().as_inner().map_or(0, |f| *f.data()),
             de.rev().face().as_inner().map_or(0, |f| *f.data()),
         );
-        let m = Point2::new(pu.x + t * (pv.x - pu.x), pu.y + t * (pv.y - pu.y));
+        let mut m = Point2::new(pu.x + t * (pv.x - pu.x), pu.y + t * (pv.y - pu.y));
+        // On an arc the node goes on the circle (the point of the arc on the ray from the
+        // centre through the chord point), provided it falls in a triangle beside the edge
+        // (then the two new edges cross nothing); otherwise it stays on the chord.
+        let mut off_chord = false;
+        if let Some(&Some((c, r))) = self.arcs.get(piece as usize) {
+            let d = m.distance(c);
+            if d > 0.0 {
+                let q = Point2::new(c.x + r * (m.x - c.x) / d, c.y + r * (m.y - c.y) / d);
+                let beside = match self.cdt.locate_with_hint(sp(q), u) {
+                    PositionInTriangulation::OnFace(f) => [de.face(), de.rev().face()]
+                        .iter()
+                        .any(|x| x.as_inner().is_some_and(|x| x.fix() == f)),
+                    _ => false,
+                };
+                if beside {
+                    off_chord = q != m;
+                    m = q;
+                }
+            }
+        }
         let before = self.cdt.num_vertices();
         let cdt = &mut self.cdt;
         let w = guarded("splitting a curve edge", || cdt.insert_with_hint(sp(m), u))?.map_err(
@@ -930,14 +954,23 @@ impl<'a> Refiner<'a> {
                 )
             })
             .collect();
+        // Off the chord, the side is taken of the path u -> w -> v: the left of it at w is
+        // the wedge turning counter-clockwise from the direction w -> v to w -> u.
+        let wedge = |c: Point2| -> bool {
+            let ang = |p: Point2| (p.y - m.y).atan2(p.x - m.x);
+            let tau = std::f64::consts::TAU;
+            let base = ang(pv);
+            ((ang(c) - base).rem_euclid(tau)) < ((ang(pu) - base).rem_euclid(tau))
+        };
         for (f, opposite) in star {
             if let Some(f) = f {
                 let c = pt(self.cdt.face(f).center());
-                let lab = if cross(pu, pv, c) > 0.0 {
-                    lab_left
+                let left = if off_chord {
+                    wedge(c)
                 } else {
-                    lab_right
+                    cross(pu, pv, c) > 0.0
                 };
+                let lab = if left { lab_left } else { lab_right };
                 *self.cdt.face_data_mut(f) = lab;
                 if self.meshed[lab as usize] {
                     self.faces.push_back(f);

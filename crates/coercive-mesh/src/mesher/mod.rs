@@ -539,6 +539,11 @@ impl Staged {
         refiner.pair_of = self.pair_of.iter().map(|p| p.map(|(o, _)| o)).collect();
         refiner.pair_of.push(None);
         refiner.partner = partner;
+        refiner.arcs = prep
+            .pieces
+            .iter()
+            .map(|p| p.arc.map(|a| (a.centre, a.radius)))
+            .collect();
         refiner.refine()?;
         Ok(Fine {
             vpiece: refiner.vpiece,
