@@ -26,7 +26,10 @@ use std::f64::consts::PI;
 
 use coercive_fem::{ElementOrder, Formulation, LinearMagnet, MagnetDirection, Material, Model};
 use coercive_mesh::{Geometry, MeshSettings, Point2};
-use coercive_post::force::{force_on, Body, ForceMethod, ForceSettings};
+use coercive_post::force::{
+    eggshell, force_on, stress_on_path, Body, ClosedPath, ForceMethod, ForceSettings,
+};
+use coercive_post::PointLocator;
 
 /// magpylib's force per metre at length ratios 50..800 and the extrapolated planar limit.
 const MAGPYLIB_BY_LENGTH: [(f64, f64); 5] = [
@@ -111,6 +114,36 @@ fn two_bar_magnets_side_by_side_repel_as_magpylib_says() {
         assert!(e.abs() < tol, "{}: {e}", m.method);
         assert!(m.force[1].abs() < tol * MAGPYLIB_PLANAR);
     }
+    // The eggshell does not depend on the shell's thickness (Henrotte et al., COMPEL 23(4),
+    // 2004: any xi that is 1 on the body and 0 outside the shell gives the same force for an
+    // exact field): 1 to 4 element layers.
+    let body = Body::new(&["right"]);
+    let by_layers: Vec<f64> = (1..=4)
+        .map(|l| eggshell(&sol, &body, l, [0.0; 2]).unwrap().force[0])
+        .collect();
+    eprintln!("bar magnets, eggshell by layers 1..4: {by_layers:?} N/m");
+    let spread = coercive_post::force::relative_spread(&by_layers, 0.0);
+    assert!(spread < 5e-4, "{spread}");
+    // A user path mid-gap (x = 0, where the gap has two elements across) closed around the
+    // right magnet, added to the comparison.
+    let loc = PointLocator::new(sol.model().mesh().clone());
+    let path = stress_on_path(
+        &sol,
+        &loc,
+        &ClosedPath::rectangle([0.0, -0.02], [0.02, 0.02]),
+        [0.0; 2],
+    )
+    .unwrap();
+    let e = (path.force[0] - MAGPYLIB_PLANAR) / MAGPYLIB_PLANAR;
+    eprintln!(
+        "bar magnets, stress on a mid-gap rectangle: F_x = {:.3} N/m, error {e:.2e}",
+        path.force[0]
+    );
+    assert!(e.abs() < 5e-3);
+    let mut f = f;
+    f.add_method(path, &ForceSettings::default());
+    assert_eq!(f.methods.len(), 4);
+    assert!(f.force_spread < 1e-2 && !f.warning);
     // The finite-length values lie below the planar one by far more than our error at a
     // length ratio of 50 (1.3 %): the planar model needs the extrapolated reference.
     assert!((MAGPYLIB_BY_LENGTH[0].1 - f.force()[0]).abs() / MAGPYLIB_PLANAR > 5e-3);

@@ -190,6 +190,19 @@ impl BodyForce {
     pub fn by(&self, method: &ForceMethod) -> Option<&MethodForce> {
         self.methods.iter().find(|m| &m.method == method)
     }
+
+    /// Adds another estimate (e.g. [`stress_on_path`] on a path of the user's choice) and
+    /// recomputes the spreads and the warning with `settings`.
+    pub fn add_method(&mut self, method: MethodForce, settings: &ForceSettings) {
+        self.methods.push(method);
+        let forces: Vec<[f64; 2]> = self.methods.iter().map(|m| m.force).collect();
+        let torques: Vec<f64> = self.methods.iter().map(|m| m.torque).collect();
+        self.force_spread = vector_spread(&forces, settings.force_floor);
+        if self.main().depth_m.is_some() {
+            self.torque_spread = relative_spread(&torques, 0.0);
+        }
+        self.warning = self.force_spread > settings.spread_warning;
+    }
 }
 
 /// Relative spread of a set of values: (max - min) / max(|values|, floor); 0 when all are 0.
