@@ -237,6 +237,16 @@ impl Layout {
                 _ => {}
             }
         }
+        // Nodes that belong to no triangle carry no equation: fix them to 0.
+        let mut referenced = vec![false; ndofs];
+        for &d in &self.element_dofs {
+            referenced[d as usize] = true;
+        }
+        for (d, used) in referenced.iter().enumerate() {
+            if !used {
+                fix(d, 0.0, &mut classes)?;
+            }
+        }
         if model.formulation() == Formulation::Axisymmetric {
             // A_phi vanishes on the axis.
             let tol = 1e-12 * mesh_extent(mesh);

@@ -198,3 +198,30 @@ fn solver_rejects_an_incompatible_model() {
     let m4 = m1.to_builder().current_density("air", 3.0).build().unwrap();
     assert!(solver.solve(&m4, &Default::default()).is_ok());
 }
+
+#[test]
+fn a_mesh_node_outside_every_triangle_is_harmless() {
+    use coercive_mesh::{Mesh, Point2};
+    let m = rectangle(0.0, 0.0, 1.0, 1.0, 2, 2, "air").unwrap();
+    let mut vertices = m.vertices().to_vec();
+    vertices.push(Point2::new(5.0, 5.0));
+    let mesh = Mesh::from_parts(
+        vertices,
+        m.triangles().to_vec(),
+        m.triangle_regions().to_vec(),
+        m.regions().to_vec(),
+        m.curves().to_vec(),
+        Vec::new(),
+    )
+    .unwrap();
+    let sol = Model::builder(mesh, Formulation::Planar { depth_m: 1.0 })
+        .material("air", Material::vacuum())
+        .current_density("air", 1e6)
+        .fixed_potential("left", 0.0)
+        .build()
+        .unwrap()
+        .solve()
+        .unwrap();
+    assert_eq!(*sol.potential().last().unwrap(), 0.0);
+    assert!(sol.energy() > 0.0);
+}
