@@ -10,8 +10,8 @@ use coercive_fem::{
 };
 use coercive_mesh::{Geometry, MeshSettings, Point2};
 use coercive_post::force::{
-    arkkio_torque, eggshell, force_on, stress_on_path, AirGap, Body, ClosedPath, ForceMethod,
-    ForceSettings,
+    arkkio_torque, coenergy_force, eggshell, force_on, stress_on_path, AirGap, Body, ClosedPath,
+    ForceMethod, ForceSettings,
 };
 use coercive_post::{PointLocator, PostError};
 
@@ -514,6 +514,22 @@ fn coaxial_thick_coils_attract_as_the_integrated_filament_formula_says() {
         assert_eq!(m.force[0], 0.0);
         assert!(m.depth_m.is_none());
     }
+    // Methods that do not apply, and incompatible pairs, are typed errors.
+    let e = arkkio_torque(
+        &sol,
+        &AirGap::Annulus {
+            centre: [0.0, 0.0],
+            inner_radius: 0.07,
+            outer_radius: 0.08,
+        },
+    )
+    .unwrap_err();
+    assert!(matches!(e, PostError::Unsupported { .. }), "{e}");
+    let e = coenergy_force(&sol, &sol, [0.0, 0.0]).unwrap_err();
+    assert!(matches!(e, PostError::InvalidArgument { .. }), "{e}");
+    let planar = two_conductors(1.0, 1.0, 0.01, 0.002, 0.05, 0.002);
+    let e = coenergy_force(&sol, &planar, [0.0, 1e-3]).unwrap_err();
+    assert!(matches!(e, PostError::IncompatibleSolutions { .. }), "{e}");
     // A path from the axis to the axis around coil 2 (the axis piece is skipped).
     let loc = PointLocator::new(sol.model().mesh().clone());
     let path = ClosedPath::new(vec![[0.0, 0.01], [0.07, 0.01], [0.07, 0.04], [0.0, 0.04]]);
