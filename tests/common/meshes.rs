@@ -34,7 +34,8 @@ pub fn lines_through(breaks: &[f64], h: impl Fn(f64) -> f64) -> Vec<f64> {
     let mut x = vec![breaks[0]];
     for w in breaks.windows(2) {
         let mid = 0.5 * (w[0] + w[1]);
-        let n = ((w[1] - w[0]) / h(mid)).ceil().max(1.0) as usize;
+        // The small allowance keeps exact ratios (0.13 / 0.001) from rounding up a cell.
+        let n = ((w[1] - w[0]) / h(mid) - 1e-9).ceil().max(1.0) as usize;
         for i in 1..=n {
             x.push(w[0] + (w[1] - w[0]) * i as f64 / n as f64);
         }
