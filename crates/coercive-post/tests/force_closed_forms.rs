@@ -692,3 +692,74 @@ fn a_body_touching_another_material_is_refused_naming_both() {
     );
     let _ = ForceMethod::StressPath;
 }
+
+#[test]
+fn axisymmetric_plunger_on_the_axis_is_pulled_into_its_coil() {
+    // A body touching the axis (r = 0) is allowed in axisymmetric models: the shell and the
+    // path need no closing piece there (2 pi r vanishes). Checks: the methods agree, the force
+    // pulls the iron plunger into the coil, and action-reaction holds (Newton's third law).
+    let mut g = Geometry::new();
+    let c = g.add_polygon(&[
+        Point2::new(0.0, -0.3),
+        Point2::new(0.3, -0.3),
+        Point2::new(0.3, 0.3),
+        Point2::new(0.0, 0.3),
+    ]);
+    for &k in &c[..3] {
+        g.name_curve(k, "outer");
+    }
+    g.add_rectangle(Point2::new(0.0, 0.01), Point2::new(0.01, 0.05));
+    g.add_rectangle(Point2::new(0.02, -0.02), Point2::new(0.03, 0.02));
+    g.add_region("air", Point2::new(0.2, 0.2));
+    g.add_region("plunger", Point2::new(0.005, 0.03));
+    g.add_region("coil", Point2::new(0.025, 0.0));
+    g.set_region_size("plunger", 0.001);
+    g.set_region_size("coil", 0.001);
+    g.set_settings(MeshSettings {
+        max_size: Some(0.03),
+        ..MeshSettings::default()
+    });
+    let sol = Model::builder(g.mesh().unwrap(), Formulation::Axisymmetric)
+        .order(ElementOrder::P2)
+        .material("air", Material::vacuum())
+        .material("coil", Material::vacuum())
+        .material(
+            "plunger",
+            Material::Linear {
+                relative_permeability: 1000.0,
+            },
+        )
+        .current_density("coil", 2e6)
+        .fixed_potential("outer", 0.0)
+        .build()
+        .unwrap()
+        .solve()
+        .unwrap();
+    let s = ForceSettings::default();
+    let f = force_on(&sol, &Body::new(&["plunger"]), &s).unwrap();
+    for m in &f.methods {
+        eprintln!("plunger, {}: F_z = {:.5} N", m.method, m.force[1]);
+    }
+    // Measured: eggshell 2 and 1 layers -0.17748 N and -0.17780 N, mid-line -0.17842 N,
+    // path -0.17722 N; coil +0.17715 N; coil and plunger together -3.4e-4 N.
+    let fz = f.force()[1];
+    assert!(fz < 0.0, "the plunger is pulled down into the coil: {fz}");
+    assert!(f.force_spread < 2e-2 && !f.warning, "{}", f.force_spread);
+    let loc = PointLocator::new(sol.model().mesh().clone());
+    let path = ClosedPath::new(vec![
+        [0.0, 0.005],
+        [0.015, 0.005],
+        [0.015, 0.055],
+        [0.0, 0.055],
+    ]);
+    let p = stress_on_path(&sol, &loc, &path, [0.0; 2]).unwrap();
+    eprintln!("plunger, path: F_z = {:.5} N", p.force[1]);
+    assert!(rel(p.force[1], fz) < 1e-2);
+    let coil = force_on(&sol, &Body::new(&["coil"]), &s).unwrap().force()[1];
+    let both = force_on(&sol, &Body::new(&["coil", "plunger"]), &s)
+        .unwrap()
+        .force()[1];
+    eprintln!("plunger {fz:.5} N, coil {coil:.5} N, both {both:.2e} N");
+    assert!((coil + fz).abs() < 5e-3 * fz.abs());
+    assert!(both.abs() < 5e-3 * fz.abs());
+}
