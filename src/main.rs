@@ -25,6 +25,19 @@ struct Cli {
 enum Command {
     /// Mesh a case's geometry and print the mesh quality report.
     Mesh(MeshArgs),
+    /// Mesh and solve a case; print unknowns, Newton iterations, residual, energy, co-energy
+    /// and the peak |B| of each region.
+    Solve(SolveArgs),
+}
+
+/// Arguments of `coercive solve`.
+#[derive(Args)]
+struct SolveArgs {
+    /// The case file (TOML) with its material, winding and boundary sections.
+    case: PathBuf,
+    /// Print the summary as JSON (SI units; energies in J/m for planar cases, J otherwise).
+    #[arg(long)]
+    json: bool,
 }
 
 /// Arguments of `coercive mesh`.
@@ -53,6 +66,7 @@ fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
         Command::Mesh(args) => run_mesh(&args),
+        Command::Solve(args) => run_solve(&args),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
@@ -61,6 +75,34 @@ fn main() -> ExitCode {
             ExitCode::FAILURE
         }
     }
+}
+
+fn run_solve(args: &SolveArgs) -> Result<(), String> {
+    let name = args.case.display();
+    let case = Case::from_file(&args.case).map_err(|e| match e {
+        CaseError::Io { .. } => e.to_string(),
+        _ => format!("{name}: {e}"),
+    })?;
+    let geometry = case.geometry().map_err(|e| format!("{name}: {e}"))?;
+    let (mesh, _) = case
+        .mesh_with_report(&geometry)
+        .map_err(|e| format!("{name}: {e}"))?;
+    let model =
+        coercive::solve::model_from_case(&case, mesh).map_err(|e| format!("{name}: {e}"))?;
+    let (_, summary) =
+        coercive::solve::solve_and_summarise(&model).map_err(|e| format!("{name}: {e}"))?;
+    if args.json {
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&summary).expect("a summary serialises")
+        );
+    } else {
+        if let Some(title) = case.title() {
+            println!("{title}");
+        }
+        println!("{summary}");
+    }
+    Ok(())
 }
 
 fn run_mesh(args: &MeshArgs) -> Result<(), String> {
