@@ -71,16 +71,23 @@ fn the_pad_keeps_its_quality_from_a_closed_to_an_open_gap() {
         .unwrap();
     let drawn = rigid.mesh_at(&[]).unwrap();
     let mut worst = (180.0f64, 0usize);
+    let mut clean = 0;
     for gap_mm in [0.05, 0.1, 0.2, 0.5, 1.0, 1.5, 2.0, 3.0] {
         let dy = (0.5 - gap_mm) * 1e-3;
         let (lo, below) = check(&rigid, &drawn, "pad", Placement::translation(0.0, dy));
         println!("pad gap {gap_mm} mm: min angle {lo:.3} deg, {below} triangles below 28 deg");
         worst = (worst.0.min(lo), worst.1.max(below));
+        clean += usize::from(below == 0);
     }
-    // Measured: 28.0 deg at every gap but one (26.9 deg at 1.5 mm, one triangle at a pole
-    // corner). The bound checked is the one met, so that any regression fails.
-    assert!(worst.0 >= 26.0, "{worst:?}");
-    assert!(worst.1 <= 2, "{worst:?}");
+    // Measured: 28.0 deg at every gap but one (26.93 deg at 1.5 mm, one triangle at a pole
+    // corner: removing its free corner brings it back at the same place). The bounds
+    // checked are the ones met, so that any regression fails.
+    assert!(worst.0 >= 26.9, "{worst:?}");
+    assert!(worst.1 <= 1, "{worst:?}");
+    assert!(
+        clean >= 7,
+        "{clean} of 8 gaps without a triangle below 28 deg"
+    );
 }
 
 #[test]
@@ -90,16 +97,24 @@ fn the_rotor_keeps_its_quality_at_every_angle() {
     let rigid = geometry("srm_full.toml").prepare_rigid().unwrap();
     let drawn = rigid.mesh_at(&[]).unwrap();
     let mut worst = (180.0f64, 0usize);
+    let mut clean = 0;
     for deg in [0.0, 1.0, 3.7, 7.5, 11.0, 15.0, 22.5, 30.0, 45.0] {
         let pl = Placement::rotation(f64::to_radians(deg), Point2::new(0.0, 0.0));
         let (lo, below) = check(&rigid, &drawn, "rotor", pl);
         println!("rotor {deg} deg: min angle {lo:.3} deg, {below} triangles below 28 deg");
         worst = (worst.0.min(lo), worst.1.max(below));
+        clean += usize::from(below == 0);
     }
-    // Measured: 21.4 to 28.0 deg (28.0 at 3.7, 11, 30 and 45 deg), at most 6 of about
-    // 100 000 triangles below 28 deg, all beside the rotor outline.
-    assert!(worst.0 >= 21.0, "{worst:?}");
-    assert!(worst.1 <= 8, "{worst:?}");
+    // Measured (free air nodes next to the fixed outline removed after refinement):
+    // 28.0 deg at 1, 3.7, 11, 22.5, 30 and 45 deg; 27.98 deg at 0 deg, 27.13 deg at 7.5 deg
+    // and 21.4 deg at 15 deg, one triangle each, beside the rotor outline. Before that
+    // removal: 21.4 to 28.0 deg with up to 6 triangles below 28 deg.
+    assert!(worst.0 >= 21.3, "{worst:?}");
+    assert!(worst.1 <= 1, "{worst:?}");
+    assert!(
+        clean >= 6,
+        "{clean} of 9 angles without a triangle below 28 deg"
+    );
 }
 
 #[test]

@@ -373,6 +373,13 @@ impl<'a> Refiner<'a> {
             .filter(|&e| self.cdt.is_constraint_edge(e))
             .collect();
         self.segs.extend(segs);
+        let n_initial = self.cdt.num_vertices();
+        self.run_queues()?;
+        self.improve_beside_fixed(n_initial)
+    }
+
+    /// Treats queued curve edges and faces until both queues are empty.
+    fn run_queues(&mut self) -> Result<(), MeshError> {
         loop {
             if self.cdt.num_vertices() > self.max_vertices {
                 return Err(MeshError::TooManyTriangles {
@@ -394,6 +401,199 @@ impl<'a> Refiner<'a> {
                 continue;
             }
             self.treat_face(f)?;
+        }
+        Ok(())
+    }
+
+    /// After refinement, triangles beside a fixed (never split) curve edge may stay below
+    /// the minimum angle because a free vertex sits too close to one end of that edge and
+    /// nothing may be split to push it away. Such vertices are removed (they were inserted
+    /// by refinement, lie on no curve, and the fixed edge gets a fresh apex when the
+    /// neighbourhood is refined again). This is repeated for at most `ROUNDS` rounds; the
+    /// best state seen (highest smallest angle of the remaining bad triangles, then fewest
+    /// of them) is kept, so the result is never worse than plain refinement. Deterministic:
+    /// candidates are taken in face order and removed by position.
+    fn improve_beside_fixed(&mut self, n_initial: usize) -> Result<(), MeshError> {
+        const ROUNDS: usize = 8;
+        let (mut best, mut victims) = self.leftovers(n_initial);
+        if victims.is_empty() {
+            return Ok(());
+        }
+        let mut saved: Option<Snapshot> = None;
+        let mut current_is_best = true;
+        for _ in 0..ROUNDS {
+            if victims.is_empty() {
+                break;
+            }
+            if current_is_best {
+                saved = Some((self.cdt.clone(), self.vpiece.clone(), self.partner.clone()));
+            }
+            for q in victims {
+                self.remove_free_vertex(q, n_initial)?;
+            }
+            self.run_queues()?;
+            let (score, next) = self.leftovers(n_initial);
+            current_is_best = score.0 > best.0 || (score.0 == best.0 && score.1 < best.1);
+            if current_is_best {
+                best = score;
+            }
+            victims = next;
+        }
+        if !current_is_best {
+            if let Some((cdt, vpiece, partner)) = saved {
+                self.cdt = cdt;
+                self.vpiece = vpiece;
+                self.partner = partner;
+            }
+        }
+        Ok(())
+    }
+
+    /// The smallest angle (degrees) and the number of the meshed triangles still below the
+    /// minimum angle and not excused by a small input angle, and the positions of the free
+    /// vertices (inserted by refinement, on no curve) to remove: for each such triangle
+    /// touching a fixed curve edge, the free ends of its shortest edge (or, if none, its
+    /// free corners).
+    fn leftovers(&self, n_initial: usize) -> ((f64, usize), Vec<Point2>) {
+        let mut worst = 180.0f64;
+        let mut count = 0;
+        let mut out: Vec<(usize, Point2)> = Vec::new();
+        for face in self.cdt.inner_faces() {
+            let lab = *face.data();
+            if !self.meshed[lab as usize] {
+                continue;
+            }
+            let vs = face.vertices();
+            let p = vs.map(|v| pt(v.position()));
+            let l2 = [sq(p[1], p[2]), sq(p[2], p[0]), sq(p[0], p[1])];
+            let (kmin, lmin2) = argmin(&l2);
+            let area2 = cross(p[0], p[1], p[2]);
+            if area2 <= 0.0 || lmin2.sqrt() < self.min_edge {
+                continue;
+            }
+            let r = (l2[0] * l2[1] * l2[2]).sqrt() / (2.0 * area2);
+            if r <= self.bad_ratio * lmin2.sqrt() {
+                continue;
+            }
+            let ids = vs.map(|v| v.fix().index() as u32);
+            let apex = vs[kmin];
+            let constraint = |x: FixedVertexHandle, y: FixedVertexHandle| {
+                self.cdt
+                    .get_edge_from_neighbors(x, y)
+                    .is_some_and(|e| self.cdt.is_constraint_edge(e.fix().as_undirected()))
+            };
+            let (u, v) = (vs[(kmin + 1) % 3], vs[(kmin + 2) % 3]);
+            if (constraint(apex.fix(), u.fix()) && constraint(apex.fix(), v.fix()))
+                || self.share_input_apex(ids[(kmin + 1) % 3], ids[(kmin + 2) % 3])
+            {
+                continue;
+            }
+            let angle = (lmin2.sqrt() / (2.0 * r))
+                .clamp(-1.0, 1.0)
+                .asin()
+                .to_degrees();
+            worst = worst.min(angle);
+            count += 1;
+            let touches_fixed = vs.iter().any(|x| {
+                x.out_edges().any(|e| {
+                    let ue = e.fix().as_undirected();
+                    self.cdt.is_constraint_edge(ue) && self.is_fixed_edge(ue)
+                })
+            });
+            if !touches_fixed {
+                continue;
+            }
+            let free = |k: usize| {
+                let i = ids[k] as usize;
+                i >= n_initial && self.vpiece[i] == NONE
+            };
+            let short = [(kmin + 1) % 3, (kmin + 2) % 3];
+            let mut picked: Vec<usize> = short.iter().copied().filter(|&k| free(k)).collect();
+            if picked.is_empty() {
+                picked = (0..3).filter(|&k| free(k)).collect();
+            }
+            out.extend(picked.into_iter().map(|k| (ids[k] as usize, p[k])));
+        }
+        out.sort_unstable_by_key(|&(i, _)| i);
+        out.dedup_by_key(|&mut (i, _)| i);
+        ((worst, count), out.into_iter().map(|(_, q)| q).collect())
+    }
+
+    /// Removes the free vertex at `q` (if it is still there, was inserted by refinement and
+    /// all faces around it carry one meshed label), labels the re-triangulated hole and
+    /// queues its faces.
+    fn remove_free_vertex(&mut self, q: Point2, n_initial: usize) -> Result<(), MeshError> {
+        let v = match self.cdt.locate(sp(q)) {
+            PositionInTriangulation::OnVertex(v) => v,
+            _ => return Ok(()),
+        };
+        let i = v.index();
+        if i < n_initial || self.vpiece[i] != NONE {
+            return Ok(());
+        }
+        let vh = self.cdt.vertex(v);
+        let mut lab = None;
+        let mut ring: Vec<Point2> = Vec::new();
+        let mut ring_ids: Vec<usize> = Vec::new();
+        for e in vh.out_edges() {
+            if self.cdt.is_constraint_edge(e.fix().as_undirected()) {
+                return Ok(());
+            }
+            let Some(f) = e.face().as_inner() else {
+                return Ok(());
+            };
+            let l = *f.data();
+            if !self.meshed[l as usize] || lab.is_some_and(|x| x != l) {
+                return Ok(());
+            }
+            lab = Some(l);
+            ring.push(pt(e.to().position()));
+            ring_ids.push(e.to().fix().index());
+        }
+        let Some(lab) = lab else { return Ok(()) };
+        let last = self.cdt.num_vertices() - 1;
+        let cdt = &mut self.cdt;
+        guarded("removing a vertex", || {
+            cdt.remove(v);
+        })?;
+        // Spade moves the last vertex into the freed index.
+        let moved_piece = self.vpiece[last];
+        self.vpiece.swap_remove(i);
+        if last != i {
+            for id in ring_ids.iter_mut() {
+                if *id == last {
+                    *id = i;
+                }
+            }
+            if moved_piece != NONE {
+                if let Some(w2) = self.partner.remove(&(last as u32, moved_piece)) {
+                    self.partner.insert((i as u32, moved_piece), w2);
+                    if let Some(o) = self.pair_of.get(moved_piece as usize).copied().flatten() {
+                        self.partner.insert((w2, o), i as u32);
+                    }
+                }
+            }
+        }
+        // The new faces (label 0) inside the former star get the label.
+        let mut found = Vec::new();
+        for &id in &ring_ids {
+            for e in self
+                .cdt
+                .vertex(FixedVertexHandle::from_index(id))
+                .out_edges()
+            {
+                if let Some(f) = e.face().as_inner() {
+                    if *f.data() == 0 && inside_polygon(pt(f.center()), &ring) {
+                        found.push(f.fix());
+                    }
+                }
+            }
+        }
+        found.sort_unstable_by_key(|f| f.index());
+        found.dedup();
+        for f in found {
+            *self.cdt.face_data_mut(f) = lab;
+            self.faces.push_back(f);
         }
         Ok(())
     }
@@ -1016,6 +1216,26 @@ impl<'a> Refiner<'a> {
             }
         }
     }
+}
+
+/// A refinement state kept while trying vertex removals: the triangulation, the piece of
+/// every vertex and the partner map of paired curves.
+type Snapshot = (Cdt, Vec<u32>, HashMap<(u32, u32), u32>);
+
+/// Even-odd test of `p` against the closed polygon `ring`.
+fn inside_polygon(p: Point2, ring: &[Point2]) -> bool {
+    let n = ring.len();
+    let mut inside = false;
+    for k in 0..n {
+        let (a, b) = (ring[k], ring[(k + 1) % n]);
+        if (a.y > p.y) != (b.y > p.y) {
+            let x = a.x + (p.y - a.y) / (b.y - a.y) * (b.x - a.x);
+            if p.x < x {
+                inside = !inside;
+            }
+        }
+    }
+    inside
 }
 
 #[inline]
