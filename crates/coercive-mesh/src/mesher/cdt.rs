@@ -415,7 +415,7 @@ impl<'a> Refiner<'a> {
     /// candidates are taken in face order and removed by position.
     fn improve_beside_fixed(&mut self, n_initial: usize) -> Result<(), MeshError> {
         const ROUNDS: usize = 8;
-        let (mut best, mut victims) = self.leftovers(n_initial);
+        let (mut best, mut victims) = self.leftovers(n_initial, false);
         if victims.is_empty() {
             return Ok(());
         }
@@ -432,12 +432,15 @@ impl<'a> Refiner<'a> {
                 self.remove_free_vertex(q, n_initial)?;
             }
             self.run_queues()?;
-            let (score, next) = self.leftovers(n_initial);
+            let (score, next) = self.leftovers(n_initial, false);
             current_is_best = score.0 > best.0 || (score.0 == best.0 && score.1 < best.1);
             if current_is_best {
                 best = score;
+                victims = next;
+            } else {
+                // The same nodes came back: clear the whole neighbourhood next time.
+                victims = self.leftovers(n_initial, true).1;
             }
-            victims = next;
         }
         if !current_is_best {
             if let Some((cdt, vpiece, partner)) = saved {
@@ -454,7 +457,7 @@ impl<'a> Refiner<'a> {
     /// vertices (inserted by refinement, on no curve) to remove: for each such triangle
     /// touching a fixed curve edge, the free ends of its shortest edge (or, if none, its
     /// free corners).
-    fn leftovers(&self, n_initial: usize) -> ((f64, usize), Vec<Point2>) {
+    fn leftovers(&self, n_initial: usize, wide: bool) -> ((f64, usize), Vec<Point2>) {
         let mut worst = 180.0f64;
         let mut count = 0;
         let mut out: Vec<(usize, Point2)> = Vec::new();
@@ -513,6 +516,17 @@ impl<'a> Refiner<'a> {
                 picked = (0..3).filter(|&k| free(k)).collect();
             }
             out.extend(picked.into_iter().map(|k| (ids[k] as usize, p[k])));
+            if wide {
+                for x in vs {
+                    for e in x.out_edges() {
+                        let w = e.to();
+                        let i = w.fix().index();
+                        if i >= n_initial && self.vpiece[i] == NONE {
+                            out.push((i, pt(w.position())));
+                        }
+                    }
+                }
+            }
         }
         out.sort_unstable_by_key(|&(i, _)| i);
         out.dedup_by_key(|&mut (i, _)| i);
