@@ -59,20 +59,24 @@ impl VertexTriangles {
 }
 
 /// Vertices on the outer boundary of the mesh (on an edge used by one triangle only).
-pub(crate) fn boundary_vertices(mesh: &Mesh) -> Vec<bool> {
-    let mut edges: std::collections::HashMap<(u32, u32), u32> =
-        std::collections::HashMap::with_capacity(3 * mesh.triangles().len());
-    for tri in mesh.triangles() {
-        for k in 0..3 {
-            let (a, b) = (tri[k].0, tri[(k + 1) % 3].0);
-            *edges.entry((a.min(b), a.max(b))).or_insert(0) += 1;
-        }
-    }
+///
+/// Found through the vertex-to-triangle adjacency (an edge a-b is shared when another
+/// triangle around a also holds b) rather than a hash map of all edges: on a 1M-triangle
+/// mesh the hash map cost about a second per call on a loaded 2-core machine.
+fn boundary_vertices(mesh: &Mesh, adjacency: &VertexTriangles) -> Vec<bool> {
+    let triangles = mesh.triangles();
     let mut on = vec![false; mesh.vertices().len()];
-    for ((a, b), n) in edges {
-        if n == 1 {
-            on[a as usize] = true;
-            on[b as usize] = true;
+    for (t, tri) in triangles.iter().enumerate() {
+        for k in 0..3 {
+            let (a, b) = (tri[k], tri[(k + 1) % 3]);
+            let shared = adjacency
+                .of(a.index())
+                .iter()
+                .any(|&u| u as usize != t && triangles[u as usize].contains(&b));
+            if !shared {
+                on[a.index()] = true;
+                on[b.index()] = true;
+            }
         }
     }
     on
@@ -84,6 +88,11 @@ pub(crate) fn build_shell(
     body: &Body,
     layers: usize,
 ) -> Result<Shell, PostError> {
+    check_layers(layers)?;
+    Ok(ShellBase::new(solution, body)?.shell(solution.model().mesh(), layers))
+}
+
+fn check_layers(layers: usize) -> Result<(), PostError> {
     if layers == 0 {
         return Err(PostError::InvalidArgument {
             what: "shell layers".into(),
@@ -91,127 +100,162 @@ pub(crate) fn build_shell(
             reason: "at least one element layer is needed".into(),
         });
     }
-    let mask = body_mask(solution, body)?;
-    let model = solution.model();
-    let mesh = model.mesh();
-    let nv = mesh.vertices().len();
-    let nreg = mesh.regions().len();
-    let air: Vec<bool> = (0..nreg)
-        .map(|r| is_air(solution, coercive_mesh::RegionId(r as u32)))
-        .collect();
-    let axisymmetric = matches!(model.formulation(), Formulation::Axisymmetric);
-    let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
-    for p in mesh.vertices() {
-        lo = [lo[0].min(p.x), lo[1].min(p.y)];
-        hi = [hi[0].max(p.x), hi[1].max(p.y)];
-    }
-    let axis_tol = 1e-9 * (hi[0] - lo[0]).max(hi[1] - lo[1]);
+    Ok(())
+}
 
-    // Body nodes, and nodes where xi must vanish (other materials, outer boundary).
-    let mut in_body = vec![false; nv];
-    let mut blocked_by: Vec<Option<usize>> = vec![None; nv];
-    for (t, tri) in mesh.triangles().iter().enumerate() {
-        let r = mesh.triangle_regions()[t].index();
-        if mask[r] {
-            for v in tri {
-                in_body[v.index()] = true;
-            }
-        } else if !air[r] {
-            for v in tri {
-                blocked_by[v.index()] = Some(r);
-            }
-        }
-    }
-    let boundary = boundary_vertices(mesh);
-    for v in 0..nv {
-        if !in_body[v] {
-            continue;
-        }
-        if let Some(r) = blocked_by[v] {
-            let p = mesh.vertices()[v];
-            let body_region = body_region_at(mesh, &mask, v);
-            return Err(PostError::ShellNotInAir {
-                body: body.label(),
-                body_region,
-                region: mesh.regions()[r].name.clone(),
-                x: p.x,
-                y: p.y,
-            });
-        }
-        let p = mesh.vertices()[v];
-        if boundary[v] && !(axisymmetric && p.x.abs() <= axis_tol) {
-            return Err(PostError::BodyOnBoundary {
-                body: body.label(),
-                x: p.x,
-                y: p.y,
-            });
-        }
-    }
-    let blocked: Vec<bool> = (0..nv)
-        .map(|v| {
-            blocked_by[v].is_some()
-                || (boundary[v] && !(axisymmetric && mesh.vertices()[v].x.abs() <= axis_tol))
-        })
-        .collect();
+/// What every shell of one body shares (built once for several thicknesses): the body and
+/// air masks, the nodes where xi must vanish and the vertex-to-triangle adjacency.
+struct ShellBase {
+    mask: Vec<bool>,
+    air: Vec<bool>,
+    in_body: Vec<bool>,
+    blocked: Vec<bool>,
+    adjacency: VertexTriangles,
+}
 
-    // Breadth-first layers through air triangles.
-    let adjacency = VertexTriangles::new(mesh);
-    let mut level = vec![usize::MAX; nv];
-    let mut frontier: Vec<usize> = (0..nv).filter(|&v| in_body[v]).collect();
-    for &v in &frontier {
-        level[v] = 0;
-    }
-    let mut reached = layers;
-    for k in 1..=layers {
-        let mut next = Vec::new();
-        for &v in &frontier {
-            for &t in adjacency.of(v) {
-                let r = mesh.triangle_regions()[t as usize].index();
-                if mask[r] || !air[r] {
-                    continue;
+impl ShellBase {
+    fn new(solution: &Solution, body: &Body) -> Result<ShellBase, PostError> {
+        let mask = body_mask(solution, body)?;
+        let model = solution.model();
+        let mesh = model.mesh();
+        let nv = mesh.vertices().len();
+        let nreg = mesh.regions().len();
+        let air: Vec<bool> = (0..nreg)
+            .map(|r| is_air(solution, coercive_mesh::RegionId(r as u32)))
+            .collect();
+        let axisymmetric = matches!(model.formulation(), Formulation::Axisymmetric);
+        let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
+        for p in mesh.vertices() {
+            lo = [lo[0].min(p.x), lo[1].min(p.y)];
+            hi = [hi[0].max(p.x), hi[1].max(p.y)];
+        }
+        let axis_tol = 1e-9 * (hi[0] - lo[0]).max(hi[1] - lo[1]);
+
+        // Body nodes, and nodes where xi must vanish (other materials, outer boundary).
+        let mut in_body = vec![false; nv];
+        let mut blocked_by: Vec<Option<usize>> = vec![None; nv];
+        for (t, tri) in mesh.triangles().iter().enumerate() {
+            let r = mesh.triangle_regions()[t].index();
+            if mask[r] {
+                for v in tri {
+                    in_body[v.index()] = true;
                 }
-                for u in mesh.triangles()[t as usize] {
-                    let u = u.index();
-                    if level[u] != usize::MAX {
+            } else if !air[r] {
+                for v in tri {
+                    blocked_by[v.index()] = Some(r);
+                }
+            }
+        }
+        let adjacency = VertexTriangles::new(mesh);
+        let boundary = boundary_vertices(mesh, &adjacency);
+        for v in 0..nv {
+            if !in_body[v] {
+                continue;
+            }
+            if let Some(r) = blocked_by[v] {
+                let p = mesh.vertices()[v];
+                let body_region = body_region_at(mesh, &mask, v);
+                return Err(PostError::ShellNotInAir {
+                    body: body.label(),
+                    body_region,
+                    region: mesh.regions()[r].name.clone(),
+                    x: p.x,
+                    y: p.y,
+                });
+            }
+            let p = mesh.vertices()[v];
+            if boundary[v] && !(axisymmetric && p.x.abs() <= axis_tol) {
+                return Err(PostError::BodyOnBoundary {
+                    body: body.label(),
+                    x: p.x,
+                    y: p.y,
+                });
+            }
+        }
+        let blocked: Vec<bool> = (0..nv)
+            .map(|v| {
+                blocked_by[v].is_some()
+                    || (boundary[v] && !(axisymmetric && mesh.vertices()[v].x.abs() <= axis_tol))
+            })
+            .collect();
+
+        Ok(ShellBase {
+            mask,
+            air,
+            in_body,
+            blocked,
+            adjacency,
+        })
+    }
+
+    /// The shell of `layers` (at least 1) element layers.
+    fn shell(&self, mesh: &Mesh, layers: usize) -> Shell {
+        let ShellBase {
+            mask,
+            air,
+            in_body,
+            blocked,
+            adjacency,
+        } = self;
+        let nv = mesh.vertices().len();
+        // Breadth-first layers through air triangles.
+        let mut level = vec![usize::MAX; nv];
+        let mut frontier: Vec<usize> = (0..nv).filter(|&v| in_body[v]).collect();
+        for &v in &frontier {
+            level[v] = 0;
+        }
+        let mut reached = layers;
+        for k in 1..=layers {
+            let mut next = Vec::new();
+            for &v in &frontier {
+                for &t in adjacency.of(v) {
+                    let r = mesh.triangle_regions()[t as usize].index();
+                    if mask[r] || !air[r] {
                         continue;
                     }
-                    level[u] = k;
-                    if blocked[u] {
-                        reached = reached.min(k);
-                    } else {
-                        next.push(u);
+                    for u in mesh.triangles()[t as usize] {
+                        let u = u.index();
+                        if level[u] != usize::MAX {
+                            continue;
+                        }
+                        level[u] = k;
+                        if blocked[u] {
+                            reached = reached.min(k);
+                        } else {
+                            next.push(u);
+                        }
                     }
                 }
             }
+            frontier = next;
         }
-        frontier = next;
+        let xi: Vec<f64> = (0..nv)
+            .map(|v| {
+                if in_body[v] {
+                    1.0
+                } else if blocked[v] || level[v] == usize::MAX {
+                    0.0
+                } else {
+                    1.0 - level[v] as f64 / layers as f64
+                }
+            })
+            .collect();
+        let triangles: Vec<usize> = mesh
+            .triangles()
+            .iter()
+            .enumerate()
+            .filter(|(_, tri)| {
+                let x = tri.map(|v| xi[v.index()]);
+                x[0] != x[1] || x[1] != x[2]
+            })
+            .map(|(t, _)| t)
+            .collect();
+        Shell {
+            xi,
+            triangles,
+            layers_reached: reached,
+        }
     }
-    let xi: Vec<f64> = (0..nv)
-        .map(|v| {
-            if in_body[v] {
-                1.0
-            } else if blocked[v] || level[v] == usize::MAX {
-                0.0
-            } else {
-                1.0 - level[v] as f64 / layers as f64
-            }
-        })
-        .collect();
-    let triangles: Vec<usize> = mesh
-        .triangles()
-        .iter()
-        .enumerate()
-        .filter(|(_, tri)| {
-            let x = tri.map(|v| xi[v.index()]);
-            x[0] != x[1] || x[1] != x[2]
-        })
-        .map(|(t, _)| t)
-        .collect();
-    Ok(Shell {
-        xi,
-        triangles,
-        layers_reached: reached,
-    })
 }
 
 fn body_region_at(mesh: &Mesh, mask: &[bool], v: usize) -> String {
@@ -408,7 +452,10 @@ pub fn force_on(
     settings: &ForceSettings,
 ) -> Result<BodyForce, PostError> {
     let c = settings.torque_centre;
-    let main = build_shell(solution, body, settings.shell_layers)?;
+    check_layers(settings.shell_layers)?;
+    let base = ShellBase::new(solution, body)?;
+    let mesh = solution.model().mesh();
+    let main = base.shell(mesh, settings.shell_layers);
     let reached = main.layers_reached;
     let (f_main, t_main) = shell_integral(solution, &main, c)?;
     let depth = depth_of(solution);
@@ -423,7 +470,7 @@ pub fn force_on(
     let thin = if settings.shell_layers == 1 {
         main
     } else {
-        let thin = build_shell(solution, body, 1)?;
+        let thin = base.shell(mesh, 1);
         let (f, t) = shell_integral(solution, &thin, c)?;
         methods.push(MethodForce {
             method: ForceMethod::Eggshell { layers: 1 },
@@ -464,5 +511,28 @@ pub(crate) fn summarise(
         warning: force_spread > settings.spread_warning,
         torque_centre: settings.torque_centre,
         shell_layers_reached: layers_reached,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn boundary_vertices_are_exactly_those_on_the_rectangle_sides() {
+        let (nx, ny) = (7, 5);
+        let mesh = coercive_mesh::structured::rectangle(0.0, 0.0, 0.7, 0.5, nx, ny, "air").unwrap();
+        let adjacency = VertexTriangles::new(&mesh);
+        let on = boundary_vertices(&mesh, &adjacency);
+        let mut count = 0;
+        for (v, p) in mesh.vertices().iter().enumerate() {
+            let side = p.x.abs() < 1e-12
+                || (p.x - 0.7).abs() < 1e-12
+                || p.y.abs() < 1e-12
+                || (p.y - 0.5).abs() < 1e-12;
+            assert_eq!(on[v], side, "vertex {v} at ({} m, {} m)", p.x, p.y);
+            count += usize::from(side);
+        }
+        assert_eq!(count, 2 * (nx + ny));
     }
 }
