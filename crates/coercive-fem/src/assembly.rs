@@ -299,7 +299,9 @@ impl Assembler<'_> {
                 b[1] += op.coef[j][1] * al[j];
             }
             let resp = material.response(b, easy_axis(material, op.point, centroid));
-            let w = op.weight;
+            // Reluctivity scale of an axisymmetric open-boundary image (1 elsewhere): it
+            // multiplies H and dH/dB alike, so folding it into the weight is exact.
+            let w = op.weight * model.reluctivity_scale(region, op.point);
             for i in 0..nloc {
                 out[i] += w * (resp.h[0] * op.coef[i][0] + resp.h[1] * op.coef[i][1]);
             }
@@ -363,8 +365,11 @@ impl Assembler<'_> {
                         b[1] += op.coef[j][1] * aj;
                     }
                     let v = f(material, b, easy_axis(material, op.point, centroid));
-                    sum.0 += op.weight * v.0;
-                    sum.1 += op.weight * v.1;
+                    // The image region of an axisymmetric open boundary: energy densities
+                    // scale with its reluctivity (the region is linear air).
+                    let w = op.weight * model.reluctivity_scale(region, op.point);
+                    sum.0 += w * v.0;
+                    sum.1 += w * v.1;
                 }
                 sum
             })

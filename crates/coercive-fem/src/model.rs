@@ -132,7 +132,7 @@ pub enum PotentialValue {
     Field(ScalarField),
 }
 
-/// An open boundary by the Kelvin transformation (planar only).
+/// An open boundary by the Kelvin transformation (planar and axisymmetric).
 ///
 /// The exterior of the circle `circle` (radius R, centre c) is mapped by inversion onto a
 /// disc of the same radius R meshed as region `exterior_region` elsewhere in the plane, with
@@ -141,6 +141,13 @@ pub enum PotentialValue {
 /// other; a node must sit at `exterior_centre` (the image of infinity), where the potential
 /// is fixed to 0. The 2D Laplace equation is invariant under the inversion, so the exterior
 /// disc is filled with a material of relative permeability 1 (assigned automatically).
+///
+/// Axisymmetric models: `circle` and `exterior_boundary` are semicircles and both discs are
+/// half-discs centred on the axis r = 0 (so the translation between them is along z). The
+/// exterior region's reluctivity is then nu_0 rho'^2 / R^2 (rho' the distance from
+/// `exterior_centre`), which makes it the exact image of the unbounded exterior; its energy
+/// and co-energy are those of the whole exterior. See the derivation at
+/// `axisymmetric_kelvin` in this module's source.
 ///
 /// Reference: E. M. Freeman and D. A. Lowther, "A novel mapping technique for open boundary
 /// finite element solutions to Poisson's equation", IEEE Trans. Magn. 25(5), 1989.
@@ -278,7 +285,7 @@ impl ModelBuilder {
         self
     }
 
-    /// Open boundary by the Kelvin transformation (planar only).
+    /// Open boundary by the Kelvin transformation (planar or axisymmetric).
     pub fn open_boundary(mut self, open: OpenBoundary) -> Self {
         self.boundary_conditions.push(BoundaryCondition::Open(open));
         self
@@ -296,7 +303,8 @@ impl ModelBuilder {
     /// A [`FemError`] naming the first offending item: a region without material, a material
     /// or source for an unknown region, a duplicate material, an invalid material, an invalid
     /// winding, a non-finite number, an unknown curve, an unmatched curve pair, a non-positive
-    /// depth, negative radii or an open boundary in an axisymmetric model.
+    /// depth, negative radii, or an axisymmetric open boundary whose circles are not centred
+    /// on the axis.
     pub fn build(self) -> Result<Model, FemError> {
         let mesh = &self.mesh;
         let nreg = mesh.regions().len();
@@ -342,14 +350,6 @@ impl ModelBuilder {
         let mut open_regions = Vec::new();
         for bc in &self.boundary_conditions {
             if let BoundaryCondition::Open(o) = bc {
-                if self.formulation == Formulation::Axisymmetric {
-                    return Err(FemError::Unsupported {
-                        what: "open boundary in an axisymmetric model (the Kelvin \
-                               transformation implemented here is the planar one); enclose \
-                               the device in a larger air region with a fixed potential"
-                            .into(),
-                    });
-                }
                 let r = region("open boundary exterior", &o.exterior_region)?;
                 materials[r.index()] = Some(Material::vacuum());
                 open_regions.push(r);
@@ -433,6 +433,7 @@ impl ModelBuilder {
         }
 
         // Boundary conditions: names must exist; pairs must be matched.
+        let mut region_kelvin: Vec<Option<KelvinImage>> = vec![None; nreg];
         for bc in &self.boundary_conditions {
             match bc {
                 BoundaryCondition::FixedPotential { curve, value } => {
@@ -450,8 +451,13 @@ impl ModelBuilder {
                         finite("open boundary exterior centre (m)".into(), v)?;
                     }
                     let pairs = matched_pairs(mesh, &o.circle, &o.exterior_boundary)?;
-                    check_translated(mesh, &o.circle, &o.exterior_boundary, &pairs)?;
+                    let shift = check_translated(mesh, &o.circle, &o.exterior_boundary, &pairs)?;
                     centre_node(mesh, o)?;
+                    if self.formulation == Formulation::Axisymmetric {
+                        let r = region("open boundary exterior", &o.exterior_region)?;
+                        region_kelvin[r.index()] =
+                            Some(axisymmetric_kelvin(mesh, o, &pairs, shift)?);
+                    }
                 }
             }
         }
@@ -465,6 +471,7 @@ impl ModelBuilder {
             region_density_fields,
             region_areas,
             region_centroids,
+            region_kelvin,
             spec: self,
         })
     }
@@ -484,6 +491,8 @@ pub struct Model {
     region_density_fields: Vec<Vec<ScalarField>>,
     region_areas: Vec<f64>,
     region_centroids: Vec<[f64; 2]>,
+    /// Per region: the axisymmetric Kelvin image it holds, if any.
+    region_kelvin: Vec<Option<KelvinImage>>,
     spec: ModelBuilder,
 }
 
@@ -569,6 +578,20 @@ impl Model {
         &self.spec.boundary_conditions
     }
 
+    /// The factor multiplying the material's reluctivity (and its energy densities) at
+    /// `point` (m) in region `r`: `rho'^2 / R^2` in the exterior disc of an axisymmetric open
+    /// boundary (rho' the distance from the disc's centre), 1 everywhere else.
+    #[inline]
+    pub(crate) fn reluctivity_scale(&self, r: RegionId, point: [f64; 2]) -> f64 {
+        match &self.region_kelvin[r.index()] {
+            None => 1.0,
+            Some(k) => {
+                let (dx, dy) = (point[0] - k.centre[0], point[1] - k.centre[1]);
+                (dx * dx + dy * dy) / k.radius_sq
+            }
+        }
+    }
+
     /// The name of a region.
     pub fn region_name(&self, r: RegionId) -> &str {
         &self.mesh.regions()[r.index()].name
@@ -641,13 +664,14 @@ pub(crate) fn matched_pairs(
     Ok(out)
 }
 
-/// Checks that the matched nodes of an open-boundary pair are translates of each other.
+/// Checks that the matched nodes of an open-boundary pair are translates of each other, and
+/// returns the translation (m) from `first` to `second`.
 fn check_translated(
     mesh: &Mesh,
     first: &str,
     second: &str,
     pairs: &[(CurveId, CurveId)],
-) -> Result<(), FemError> {
+) -> Result<(f64, f64), FemError> {
     let extent = mesh_extent(mesh);
     let mut shift: Option<(f64, f64)> = None;
     for (a, b) in pairs {
@@ -672,7 +696,135 @@ fn check_translated(
             }
         }
     }
-    Ok(())
+    Ok(shift.unwrap_or((0.0, 0.0)))
+}
+
+/// The image of the unbounded exterior in an axisymmetric model: the centre of the exterior
+/// half-disc (on the axis, m) and its radius squared (m^2).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) struct KelvinImage {
+    centre: [f64; 2],
+    radius_sq: f64,
+}
+
+/// Validates an axisymmetric open boundary and returns its image data.
+///
+/// # The axisymmetric Kelvin transformation
+///
+/// In air, with the flux function psi = r A_phi, the field equation is
+/// div((1/r) grad psi) = 0 in the meridian half-plane (r, z), the Euler-Lagrange equation of
+/// the energy pi nu_0 int (1/r) |grad psi|^2 dr dz. In two dimensions the Dirichlet integral
+/// int |grad u|^2 dA is unchanged by a conformal map, provided any weight multiplying the
+/// integrand is carried along as a function of the original point. Take the inversion about
+/// the point (0, z0) of the axis with radius R: at the same polar angle, distance rho from
+/// (0, z0) becomes rho' = R^2 / rho. It is conformal in the meridian plane, maps the axis
+/// onto itself, the exterior of the half-disc of radius R onto the interior of a half-disc of
+/// radius R (translated along z in the mesh), and infinity onto its centre. A point's radius
+/// is r = R^2 r' / rho'^2, so the weight 1/r becomes rho'^2 / (R^2 r'). Writing the image
+/// unknown as A' = psi / r' turns the weight back into an ordinary axisymmetric one:
+/// pi nu_0 int (rho'^2 / R^2) |grad psi|^2 / r' dr' dz' is the energy of an axisymmetric air
+/// region whose reluctivity is nu_eff = nu_0 rho'^2 / R^2. So the exterior disc is solved as
+/// an ordinary region with that reluctivity, and its stored energy is that of the whole
+/// unbounded exterior. On the rim rho' = R, r' = r, so A' = A at matched nodes (the same node
+/// identification as the planar case); psi -> 0 at infinity fixes A' = 0 at the image centre,
+/// which lies on the axis where A = 0 anyway.
+///
+/// References: E. M. Freeman and D. A. Lowther, "A novel mapping technique for open boundary
+/// finite element solutions to Poisson's equation", IEEE Trans. Magn. 25(5), 1989 (Kelvin
+/// transformation, planar and axisymmetric); conformal invariance of the two-dimensional
+/// Dirichlet integral (e.g. any complex-analysis text on conformal mapping).
+fn axisymmetric_kelvin(
+    mesh: &Mesh,
+    o: &OpenBoundary,
+    pairs: &[(CurveId, CurveId)],
+    shift: (f64, f64),
+) -> Result<KelvinImage, FemError> {
+    let tol = 1e-9 * mesh_extent(mesh);
+    let c = o.exterior_centre;
+    let off_axis = |what: String, value: f64| FemError::OutOfRange {
+        what,
+        value,
+        reason: "an axisymmetric open boundary needs half-discs centred on the axis r = 0".into(),
+    };
+    if c[0].abs() > tol {
+        return Err(off_axis(
+            format!(
+                "radius of the centre ({} m, {} m) of exterior region `{}` (curve `{}`)",
+                c[0], c[1], o.exterior_region, o.exterior_boundary
+            ),
+            c[0],
+        ));
+    }
+    // The interior circle's centre is the exterior centre moved back by the translation.
+    let interior = [c[0] - shift.0, c[1] - shift.1];
+    if interior[0].abs() > 1e-6 * mesh_extent(mesh) {
+        return Err(off_axis(
+            format!(
+                "radius of the centre ({} m, {} m) of the open boundary circle `{}`",
+                interior[0], interior[1], o.circle
+            ),
+            interior[0],
+        ));
+    }
+    // The radius: every exterior rim node at the same distance from the centre.
+    let dist = |p: coercive_mesh::Point2| (p.x - c[0]).hypot(p.y - c[1]);
+    let mut radius = 0.0_f64;
+    for (_, b) in pairs {
+        for v in mesh.curve_nodes(*b) {
+            radius = radius.max(dist(mesh.vertex(*v)));
+        }
+    }
+    for (_, b) in pairs {
+        for v in mesh.curve_nodes(*b) {
+            let p = mesh.vertex(*v);
+            if (dist(p) - radius).abs() > 1e-6 * radius {
+                return Err(FemError::OutOfRange {
+                    what: format!(
+                        "distance of node ({} m, {} m) of curve `{}` from the exterior centre (m)",
+                        p.x, p.y, o.exterior_boundary
+                    ),
+                    value: dist(p),
+                    reason: format!(
+                        "the exterior boundary must be a circle (arc) of radius {radius} m \
+                         about the exterior centre"
+                    ),
+                });
+            }
+        }
+    }
+    // The exterior region must lie inside that circle.
+    let region =
+        mesh.region_by_name(&o.exterior_region)
+            .ok_or_else(|| FemError::UnknownRegion {
+                what: "open boundary exterior".into(),
+                region: o.exterior_region.clone(),
+            })?;
+    for (t, tri) in mesh.triangles().iter().enumerate() {
+        if mesh.triangle_regions()[t] != region {
+            continue;
+        }
+        for v in tri {
+            let p = mesh.vertex(*v);
+            if dist(p) > radius * (1.0 + 1e-6) {
+                return Err(FemError::OutOfRange {
+                    what: format!(
+                        "distance of node ({} m, {} m) of exterior region `{}` from its centre (m)",
+                        p.x, p.y, o.exterior_region
+                    ),
+                    value: dist(p),
+                    reason: format!(
+                        "the exterior region must be the half-disc of radius {radius} m bounded \
+                         by curve `{}`",
+                        o.exterior_boundary
+                    ),
+                });
+            }
+        }
+    }
+    Ok(KelvinImage {
+        centre: c,
+        radius_sq: radius * radius,
+    })
 }
 
 /// The mesh node at the centre of an open boundary's exterior disc.

@@ -54,6 +54,7 @@ impl Solution {
         let nloc = layout.nloc;
         let formulation = model.formulation();
         let order = layout.order;
+        let model_ref: &Model = &model;
         let per_t: Vec<[[f64; 2]; 2]> = (0..mesh.triangles().len())
             .into_par_iter()
             .flat_map_iter(|t| {
@@ -74,7 +75,10 @@ impl Solution {
                     let h = material
                         .response(b, easy_axis(material, op.point, centroid))
                         .h;
-                    [b, h]
+                    // The image region of an axisymmetric open boundary has a scaled
+                    // reluctivity (1 elsewhere).
+                    let s = model_ref.reluctivity_scale(region, op.point);
+                    [b, [s * h[0], s * h[1]]]
                 })
             })
             .collect();
