@@ -262,16 +262,35 @@ fn material(e: &Entry<'_>, to_m: f64) -> Result<(String, Material), SetupError> 
         })
     } else if let Some(s) = e.sub_table("brauer")? {
         kinds.push("brauer");
-        s.check_keys(&["k1", "k2", "k3"])?;
-        let c = BhCurve::brauer(
+        s.check_keys(&["k1", "k2", "k3", "exact"])?;
+        let (k1, k2, k3) = (
             s.required_number("k1")?,
             s.required_number("k2")?,
             s.required_number("k3")?,
-        )
-        .map_err(|m| material_error(e, m))?;
-        Material::Soft(SoftMagnetic {
-            curve: with_stacking(c)?,
-        })
+        );
+        let exact = match s.table.get("exact") {
+            None => false,
+            Some(Value::Boolean(b)) => *b,
+            Some(_) => return Err(e.err("`brauer.exact` must be true or false")),
+        };
+        if exact {
+            // The closed-form law at every flux density, without the vacuum-slope
+            // continuation of the sampled curve; a stacking factor needs a table.
+            if stacking.is_some() {
+                return Err(e.err(
+                    "`stacking_factor` needs a B-H table; it cannot be combined with \
+                     `brauer.exact = true`",
+                ));
+            }
+            let m = Material::Brauer { k1, k2, k3 };
+            m.validate().map_err(|m| material_error(e, m))?;
+            m
+        } else {
+            let c = BhCurve::brauer(k1, k2, k3).map_err(|m| material_error(e, m))?;
+            Material::Soft(SoftMagnetic {
+                curve: with_stacking(c)?,
+            })
+        }
     } else if let Some(br) = remanence {
         kinds.push("remanence");
         let r = recoil.ok_or_else(|| e.err("a magnet needs `recoil_permeability`"))?;
@@ -573,6 +592,41 @@ curve = "outer"
         };
         let flux = a_at([0.010, 0.0]) - a_at([0.020, 0.0]);
         assert!((flux / 1.780584e-2 - 1.0).abs() < 1e-2, "flux {flux} Wb/m");
+    }
+
+    /// `brauer = { ..., exact = true }` gives the closed-form law; a stacking factor with it
+    /// is an error naming the entry.
+    #[test]
+    fn exact_brauer_key_selects_the_closed_form_law() {
+        let exact = SECTIONS.replace(
+            "saturating = { js = 1.8, h0 = 200 }",
+            "brauer = { k1 = 3.8, k2 = 2.17, k3 = 396.2, exact = true }",
+        );
+        let case = ring_case(&exact, "ring_steel");
+        let geometry = case.geometry().unwrap();
+        let (mesh, _) = case.mesh_with_report(&geometry).unwrap();
+        let model = model_from_case(&case, mesh.clone()).unwrap();
+        let ring = mesh.region_by_name("ring").unwrap();
+        assert_eq!(
+            model.material(ring),
+            &Material::Brauer {
+                k1: 3.8,
+                k2: 2.17,
+                k3: 396.2
+            }
+        );
+        let stacked = exact.replace("exact = true }", "exact = true }\nstacking_factor = 0.95");
+        let case = ring_case(&stacked, "ring_steel");
+        match model_from_case(&case, mesh.clone()) {
+            Err(SetupError::Section { name, reason, .. }) => {
+                assert_eq!(name.as_deref(), Some("ring_steel"));
+                assert!(reason.contains("stacking_factor"), "{reason}");
+            }
+            other => panic!("{other:?}"),
+        }
+        let negative = exact.replace("k3 = 396.2", "k3 = -1");
+        let case = ring_case(&negative, "ring_steel");
+        assert!(model_from_case(&case, mesh).is_err());
     }
 
     #[test]

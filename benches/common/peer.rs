@@ -4,11 +4,12 @@
 //! [-0.03, 0.03] (+J) and [0.035, 0.05] x [-0.03, 0.03] (-J).
 //!
 //! Linear case: iron relative permeability 1000, J = 1e6 A/m^2. Nonlinear case: the iron's
-//! reluctivity nu(B^2) = 3.8 exp(2.17 B^2) + 396.2 m/H (a Brauer-type fit), J = 1.5e8 A/m^2.
+//! reluctivity nu(B^2) = 3.8 exp(2.17 B^2) + 396.2 m/H (Brauer's law, in closed form),
+//! J = 1.5e8 A/m^2.
 //! Shared by `benches/solve.rs` and `examples/peer_bench.rs`.
 #![allow(dead_code)]
 
-use coercive::fem::{BhCurve, ElementOrder, Formulation, Material, Model, SoftMagnetic, Solution};
+use coercive::fem::{ElementOrder, Formulation, Material, Model, Solution};
 use coercive::mesh::{Geometry, Mesh, MeshSettings, Point2, TriangleId};
 
 /// Current density of the linear case (A/m^2).
@@ -65,13 +66,16 @@ pub fn linear_model(mesh: &std::sync::Arc<Mesh>, order: ElementOrder) -> Model {
         .expect("linear peer model")
 }
 
-/// The nonlinear model (Brauer-type iron, J = 1.5e8 A/m^2). Our B-H curve follows the fit
-/// up to the flux density where its slope dB/dH falls to mu_0 (about 2.06 T) and continues
-/// at vacuum slope beyond (the fit itself becomes flatter than vacuum there).
+/// The nonlinear model (Brauer-type iron, J = 1.5e8 A/m^2), with the law in closed form at
+/// every flux density as the peers use it ([`Material::Brauer`]), also above about 2.06 T
+/// where its slope dB/dH falls below mu_0 (a sampled [`coercive::fem::BhCurve::brauer`]
+/// table would continue at vacuum slope there and solve a slightly different problem).
 pub fn nonlinear_model(mesh: &std::sync::Arc<Mesh>, order: ElementOrder) -> Model {
-    let iron = Material::Soft(SoftMagnetic {
-        curve: BhCurve::brauer(3.8, 2.17, 396.2).expect("valid Brauer coefficients"),
-    });
+    let iron = Material::Brauer {
+        k1: 3.8,
+        k2: 2.17,
+        k3: 396.2,
+    };
     Model::builder(mesh.clone(), Formulation::Planar { depth_m: 1.0 })
         .order(order)
         .material("air", Material::vacuum())

@@ -92,6 +92,22 @@ pub enum Material {
     Soft(SoftMagnetic),
     /// Linear permanent magnet.
     Magnet(LinearMagnet),
+    /// Brauer's analytic law H = nu(|B|^2) B with nu(b^2) = k1 exp(k2 b^2) + k3 (Brauer, IEEE
+    /// Trans. Magn. 11(1), 1975), evaluated in closed form at every point.
+    ///
+    /// Unlike [`BhCurve::brauer`], which samples the law and continues at vacuum slope where
+    /// the law's dB/dH falls below mu_0, this variant is the law as written at every flux
+    /// density: it is accepted as a model even where its slope is flatter than vacuum (no
+    /// measured table may be), and it stays convex (H is monotone in B) for the accepted
+    /// coefficients, so the energy functional keeps a unique minimum.
+    Brauer {
+        /// k1 (A/(m T)), non-negative.
+        k1: f64,
+        /// k2 (1/T^2), non-negative.
+        k2: f64,
+        /// k3 (A/(m T)), positive: the reluctivity nu(0) = k1 + k3 is then positive.
+        k3: f64,
+    },
 }
 
 /// Invalid material data: B-H points, law parameters, magnet values or an unknown preset.
@@ -346,6 +362,8 @@ impl Material {
     /// - Soft: H = nu(|B|) B, tangent nu I + (dH/db - nu) B B^T/|B|^2 (= nu I + (dnu/db)/|B|
     ///   B B^T), which tends smoothly to nu(0) I as B -> 0.
     /// - Magnet: H = nu_par (B.e - Br) e + nu_perp (B.e_perp) e_perp with nu = 1/(mu_0 mu_r).
+    /// - Brauer: H = nu B with nu = k1 exp(k2 |B|^2) + k3, tangent
+    ///   nu I + 2 k1 k2 exp(k2 |B|^2) B B^T.
     pub fn response(&self, b: [f64; 2], easy_axis: [f64; 2]) -> Response {
         match self {
             Material::Linear {
@@ -393,6 +411,16 @@ impl Material {
                 1.0 / (MU_0 * m.perpendicular_permeability),
                 m.remanence,
             ),
+            Material::Brauer { k1, k2, k3 } => {
+                let e = k1 * (k2 * (b[0] * b[0] + b[1] * b[1])).exp();
+                let nu = e + k3;
+                let c = 2.0 * k2 * e;
+                let off = c * b[0] * b[1];
+                Response {
+                    h: [nu * b[0], nu * b[1]],
+                    dh_db: [[nu + c * b[0] * b[0], off], [off, nu + c * b[1] * b[1]]],
+                }
+            }
         }
     }
 
@@ -411,6 +439,17 @@ impl Material {
                 0.5 * (d[0] * r.h[0] + d[1] * r.h[1])
             }
             Material::Soft(soft) => soft.curve.energy_density(b[0].hypot(b[1])),
+            Material::Brauer { k1, k2, k3 } => {
+                // w = int_0^|B| nu(s^2) s ds = k1 (exp(k2 b^2) - 1) / (2 k2) + k3 b^2 / 2,
+                // with expm1 for accuracy at small k2 b^2 and the limit k1 b^2 / 2 at k2 = 0.
+                let bb = b[0] * b[0] + b[1] * b[1];
+                let exp_part = if *k2 > 0.0 {
+                    k1 * (k2 * bb).exp_m1() / (2.0 * k2)
+                } else {
+                    0.5 * k1 * bb
+                };
+                exp_part + 0.5 * k3 * bb
+            }
         }
     }
 
@@ -421,12 +460,19 @@ impl Material {
     }
 
     /// True when H is affine in B (the tangent is constant): one linear solve suffices.
+    /// A Brauer law is linear only when k1 or k2 is zero.
     pub fn is_linear(&self) -> bool {
-        !matches!(self, Material::Soft(_))
+        match self {
+            Material::Soft(_) => false,
+            Material::Brauer { k1, k2, .. } => *k1 == 0.0 || *k2 == 0.0,
+            _ => true,
+        }
     }
 
     /// Checks every parameter: positive finite permeabilities, recoil permeability at least 1,
-    /// finite non-negative remanence, finite angles and centres.
+    /// finite non-negative remanence, finite angles and centres; for a Brauer law finite
+    /// k1 >= 0, k2 >= 0 and k3 > 0. A Brauer law is accepted even where its slope dB/dH is
+    /// flatter than vacuum (it is a model, not a measured table: see [`Material::Brauer`]).
     ///
     /// # Errors
     /// [`MaterialError::InvalidParameter`] naming the parameter and its value.
@@ -486,6 +532,32 @@ impl Material {
                     true,
                 )?;
                 m.direction.validate()
+            }
+            Material::Brauer { k1, k2, k3 } => {
+                for (parameter, value, positive) in [
+                    ("k1 (A/(m T))", *k1, false),
+                    ("k2 (1/T^2)", *k2, false),
+                    ("k3 (A/(m T))", *k3, true),
+                ] {
+                    let reason = if !value.is_finite() {
+                        Some("must be finite")
+                    } else if positive && value <= 0.0 {
+                        Some("must be positive")
+                    } else if value < 0.0 {
+                        Some("must be non-negative")
+                    } else {
+                        None
+                    };
+                    if let Some(reason) = reason {
+                        return Err(MaterialError::InvalidParameter {
+                            material: "Brauer law".into(),
+                            parameter,
+                            value,
+                            reason,
+                        });
+                    }
+                }
+                Ok(())
             }
         }
     }

@@ -48,6 +48,7 @@ fn material_kind(m: &Material) -> &'static str {
         Material::Anisotropic { .. } => "anisotropic",
         Material::Soft(_) => "soft (nonlinear)",
         Material::Magnet(_) => "magnet",
+        Material::Brauer { .. } => "Brauer law (nonlinear)",
         _ => "other",
     }
 }
