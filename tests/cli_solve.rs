@@ -31,7 +31,11 @@ fn solve_prints_a_json_summary_and_names_bad_curves() {
         .arg(ring_case(&dir, "outer"))
         .output()
         .unwrap();
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert!(v["unknowns"].as_u64().unwrap() > 1000);
     assert!(v["newton_iterations"].as_u64().unwrap() >= 2);
