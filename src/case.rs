@@ -230,6 +230,50 @@ struct RawCase {
     winding: Vec<Spanned<toml::Table>>,
     #[serde(default)]
     boundary: Vec<Spanned<toml::Table>>,
+    #[serde(default)]
+    sweep: Option<Spanned<RawSweep>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawSweep {
+    group: Spanned<String>,
+    direction: Spanned<[f64; 2]>,
+    #[serde(default)]
+    offsets: Option<Spanned<Vec<f64>>>,
+    #[serde(default)]
+    gaps: Option<Spanned<Vec<f64>>>,
+    #[serde(default)]
+    drawn_gap: Option<Spanned<f64>>,
+    body: Spanned<Vec<Spanned<String>>>,
+}
+
+/// What a `[sweep]`'s values are.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum SweepParameter {
+    /// `offsets`: displacements of the group along the direction.
+    Offset,
+    /// `gaps` with `drawn_gap`: the offset is `drawn_gap - gap`.
+    Gap,
+}
+
+/// The optional `[sweep]` section: a rigid group moved along a direction, with the force on
+/// a body reported at each point (see `docs/case-format.md`). Lengths in metres.
+#[derive(Clone, Debug, PartialEq)]
+pub struct CaseSweep {
+    /// The rigid group that moves.
+    pub group: String,
+    /// Unit vector of the motion (normalised from the file's `direction`).
+    pub direction: [f64; 2],
+    /// Whether `values_m` are offsets or gaps.
+    pub parameter: SweepParameter,
+    /// The swept values as written, converted to metres (offsets or gaps).
+    pub values_m: Vec<f64>,
+    /// The displacement of the group along `direction` at each point (m).
+    pub offsets_m: Vec<f64>,
+    /// Regions whose force is reported.
+    pub body: Vec<String>,
 }
 
 #[derive(Deserialize, Default)]
@@ -385,6 +429,7 @@ pub struct Case {
     positions: Positions,
     region_materials: Vec<(String, Option<String>)>,
     sections: BTreeMap<&'static str, Vec<toml::Table>>,
+    sweep: Option<CaseSweep>,
 }
 
 impl Case {
@@ -482,6 +527,11 @@ impl Case {
     /// (from [`Case::source`] when it needs positions).
     pub fn section(&self, name: &str) -> &[toml::Table] {
         self.sections.get(name).map_or(&[], Vec::as_slice)
+    }
+
+    /// The `[sweep]` section, if any (checked when the file was read).
+    pub fn sweep(&self) -> Option<&CaseSweep> {
+        self.sweep.as_ref()
     }
 
     /// The geometry part of the case, in metres, with the `[mesh]` settings.
@@ -754,6 +804,11 @@ impl Reader<'_> {
             positions.rigid_groups.push(self.pos(name));
         }
 
+        let sweep = match &raw.sweep {
+            None => None,
+            Some(sw) => Some(self.sweep(unit, sw, &geometry)?),
+        };
+
         let mut sections = BTreeMap::new();
         for (key, tables) in [
             ("material", raw.material),
@@ -775,6 +830,107 @@ impl Reader<'_> {
             positions,
             region_materials,
             sections,
+            sweep,
+        })
+    }
+
+    /// Checks a `[sweep]` against the geometry's rigid groups and regions.
+    fn sweep(
+        &self,
+        unit: LengthUnit,
+        raw: &Spanned<RawSweep>,
+        geometry: &Geometry,
+    ) -> Result<CaseSweep, CaseError> {
+        let sw = raw.get_ref();
+        if !geometry
+            .rigid_groups
+            .iter()
+            .any(|g| &g.name == sw.group.get_ref())
+        {
+            return Err(CaseError::UnknownName {
+                kind: "rigid group",
+                name: sw.group.get_ref().clone(),
+                position: self.pos(&sw.group),
+            });
+        }
+        let [dx, dy] = *sw.direction.get_ref();
+        let norm = dx.hypot(dy);
+        if !(norm.is_finite() && norm > 0.0) {
+            return Err(self.invalid(
+                &sw.direction,
+                format!("sweep direction must be a non-zero vector, got [{dx}, {dy}]"),
+            ));
+        }
+        let (parameter, values) = match (&sw.offsets, &sw.gaps) {
+            (Some(o), None) => {
+                if let Some(d) = &sw.drawn_gap {
+                    return Err(self.invalid(
+                        d,
+                        "sweep `drawn_gap` goes with `gaps`, not `offsets`".into(),
+                    ));
+                }
+                (SweepParameter::Offset, o)
+            }
+            (None, Some(g)) => (SweepParameter::Gap, g),
+            (Some(o), Some(_)) => {
+                return Err(self.invalid(o, "sweep: give `offsets` or `gaps`, not both".into()))
+            }
+            (None, None) => {
+                return Err(self.invalid(
+                    raw,
+                    "sweep: give `offsets` or `gaps` (with `drawn_gap`)".into(),
+                ))
+            }
+        };
+        if values.get_ref().is_empty() {
+            return Err(self.invalid(values, "sweep values must not be empty".into()));
+        }
+        if let Some(v) = values.get_ref().iter().find(|v| !v.is_finite()) {
+            return Err(self.invalid(values, format!("sweep value {v} is not finite")));
+        }
+        let values_m: Vec<f64> = values
+            .get_ref()
+            .iter()
+            .map(|&v| unit.to_metres(v))
+            .collect();
+        let offsets_m = match parameter {
+            SweepParameter::Offset => values_m.clone(),
+            _ => {
+                let drawn = sw
+                    .drawn_gap
+                    .as_ref()
+                    .ok_or_else(|| self.invalid(values, "sweep `gaps` need `drawn_gap`".into()))?;
+                if !drawn.get_ref().is_finite() {
+                    return Err(self.invalid(drawn, "sweep `drawn_gap` must be finite".into()));
+                }
+                if let Some(g) = values.get_ref().iter().find(|g| **g <= 0.0) {
+                    return Err(self.invalid(values, format!("sweep gap {g} must be positive")));
+                }
+                let d = unit.to_metres(*drawn.get_ref());
+                values_m.iter().map(|g| d - g).collect()
+            }
+        };
+        let mut body = Vec::new();
+        for r in sw.body.get_ref() {
+            if !geometry.regions.iter().any(|g| &g.name == r.get_ref()) {
+                return Err(CaseError::UnknownName {
+                    kind: "region",
+                    name: r.get_ref().clone(),
+                    position: self.pos(r),
+                });
+            }
+            body.push(r.get_ref().clone());
+        }
+        if body.is_empty() {
+            return Err(self.invalid(&sw.body, "sweep `body` names no region".into()));
+        }
+        Ok(CaseSweep {
+            group: sw.group.get_ref().clone(),
+            direction: [dx / norm, dy / norm],
+            parameter,
+            values_m,
+            offsets_m,
+            body,
         })
     }
 

@@ -26,7 +26,8 @@ enum Command {
     /// Mesh a case's geometry and print the mesh quality report.
     Mesh(MeshArgs),
     /// Mesh and solve a case; print unknowns, Newton iterations, residual, energy, co-energy
-    /// and the peak |B| of each region.
+    /// and the peak |B| of each region; then run the case's `[sweep]`, if any (force on a
+    /// body versus the position of a rigid group, by three methods).
     Solve(SolveArgs),
 }
 
@@ -62,6 +63,15 @@ struct MeshArgs {
     no_edges: bool,
 }
 
+/// Writes a line to standard output. Unlike `println!`, a closed pipe (`coercive ... | head`)
+/// ends the output quietly instead of panicking.
+macro_rules! say {
+    ($($arg:tt)*) => {{
+        use std::io::Write as _;
+        let _ = writeln!(std::io::stdout().lock(), $($arg)*);
+    }};
+}
+
 fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
@@ -92,18 +102,47 @@ fn run_solve(args: &SolveArgs) -> Result<(), String> {
     let (_, summary) =
         coercive::solve::solve_and_summarise(&model).map_err(|e| format!("{name}: {e}"))?;
     if args.json {
-        println!(
+        let mut value = serde_json::to_value(&summary).expect("a summary serialises");
+        if case.sweep().is_some() {
+            let sweep = coercive::solve::run_sweep(&case).map_err(|e| format!("{name}: {e}"))?;
+            if let Some(obj) = value.as_object_mut() {
+                obj.insert(
+                    "sweep".into(),
+                    serde_json::to_value(&sweep).expect("a sweep serialises"),
+                );
+                obj.insert("cautions".into(), CAUTIONS.join(" ").into());
+            }
+        }
+        say!(
             "{}",
-            serde_json::to_string_pretty(&summary).expect("a summary serialises")
+            serde_json::to_string_pretty(&value).expect("JSON values serialise")
         );
     } else {
         if let Some(title) = case.title() {
-            println!("{title}");
+            say!("{title}");
         }
-        println!("{summary}");
+        say!("{summary}");
+        if case.sweep().is_some() {
+            say!();
+            for line in CAUTIONS {
+                say!("{line}");
+            }
+            let sweep = coercive::solve::run_sweep(&case).map_err(|e| format!("{name}: {e}"))?;
+            say!();
+            say!("{sweep}");
+        }
     }
     Ok(())
 }
+
+/// The magnet-safety cautions printed with every force sweep.
+const CAUTIONS: [&str; 5] = [
+    "Safety (magnet devices):",
+    "  - Pinch hazard: a holding magnet snaps onto steel with the forces below; keep fingers out of the gap and handle large magnets with tools.",
+    "  - Strong fields affect pacemakers, implanted defibrillators and other implants, and can erase cards and damage instruments: keep the makers' safety distances.",
+    "  - Pulse coils that switch a magnet are driven from charged capacitors: discharge them before touching the circuit.",
+    "  - Computed forces are for ideal flat, clean, thick steel: derate for real plates and apply the lifting safety factors of your local codes. These numbers do not replace local codes or licensed engineering practice.",
+];
 
 fn run_mesh(args: &MeshArgs) -> Result<(), String> {
     let case = Case::from_file(&args.case).map_err(|e| match e {
@@ -147,7 +186,7 @@ fn run_mesh(args: &MeshArgs) -> Result<(), String> {
     }
 
     if args.json {
-        println!("{}", json_report(&args.case, &mesh, &report, seconds));
+        say!("{}", json_report(&args.case, &mesh, &report, seconds));
     } else {
         print_report(&args.case, &case, &report, seconds, args.svg.as_deref());
     }
@@ -184,10 +223,10 @@ fn print_report(
     svg: Option<&Path>,
 ) {
     match case.title() {
-        Some(t) => println!("case: {} ({t})", path.display()),
-        None => println!("case: {}", path.display()),
+        Some(t) => say!("case: {} ({t})", path.display()),
+        None => say!("case: {}", path.display()),
     }
-    println!(
+    say!(
         "mesh: {} triangles, {} nodes in {:.3} s ({:.0} triangles/s)",
         report.triangles,
         report.nodes,
@@ -195,7 +234,7 @@ fn print_report(
         report.triangles as f64 / seconds.max(1e-9)
     );
     let unit = case.unit();
-    println!(
+    say!(
         "angles: min {:.2} deg (at ({:.4}, {:.4}) {}), max {:.2} deg (requested min {:.1} deg; {} triangles below it)",
         report.min_angle_deg,
         unit.from_metres(report.min_angle_at.x),
@@ -205,7 +244,7 @@ fn print_report(
         report.requested_min_angle_deg,
         report.triangles_below_min_angle
     );
-    println!(
+    say!(
         "size: longest edge at most {:.3} x the local target size",
         report.max_size_ratio
     );
@@ -216,10 +255,10 @@ fn print_report(
         .max()
         .unwrap_or(6)
         .max(6);
-    println!("regions:");
+    say!("regions:");
     for r in &report.regions {
         let area_unit = unit.from_metres(unit.from_metres(r.area));
-        println!(
+        say!(
             "  {:<width$}  {:>9} triangles  area {:.6e} m^2 ({:.4} {}^2)  min angle {:.2} deg",
             r.name,
             r.triangles,
@@ -230,7 +269,7 @@ fn print_report(
         );
     }
     for a in &report.small_input_angles {
-        println!(
+        say!(
             "input angle of {:.2} deg at ({:.6}, {:.6}) {} is kept (smaller than the requested minimum)",
             a.angle_deg,
             unit.from_metres(a.at.x),
@@ -241,12 +280,12 @@ fn print_report(
     if let Some(svg) = svg {
         let max = SvgOptions::default().max_triangles_with_edges;
         if report.triangles > max {
-            println!(
+            say!(
                 "drawing: {} (triangle edges left out above {max} triangles)",
                 svg.display()
             );
         } else {
-            println!("drawing: {}", svg.display());
+            say!("drawing: {}", svg.display());
         }
     }
 }

@@ -10,7 +10,9 @@ use coercive_mesh::Mesh;
 use thiserror::Error;
 use toml::{Table, Value};
 
-use crate::case::{Case, CaseFormulation};
+use crate::case::{Case, CaseFormulation, SweepParameter};
+use crate::study::{force_sweep, ForceSweepSettings, StudyError, TranslationPoint};
+use coercive_post::force::{Body, ForceSettings};
 
 /// What can go wrong while turning a case into a model.
 #[derive(Debug, Clone, PartialEq, Error)]
@@ -499,6 +501,245 @@ pub fn solve_and_summarise(
         solve_s: report.times.solve_s,
     };
     Ok((sol, summary))
+}
+
+/// One row of a case's `[sweep]`: the force on the body along the sweep direction by three
+/// methods (N for the stack depth in planar cases, total N in axisymmetric ones).
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct SweepRow {
+    /// The swept value as written (gap or offset), in m.
+    pub value_m: f64,
+    /// Displacement of the group along the direction from its drawn position (m).
+    pub offset_m: f64,
+    /// Eggshell (virtual work over the air layer) force (N).
+    pub eggshell_n: f64,
+    /// Maxwell stress on the mid-line of the air layer (N).
+    pub stress_n: f64,
+    /// Co-energy difference, central over two extra solves (N).
+    pub coenergy_n: f64,
+    /// Planar only: the same three forces per metre of depth (N/m), in that order.
+    pub per_metre_n_per_m: Option<[f64; 3]>,
+    /// Relative spread of the three values (dimensionless; printed in %).
+    pub spread: f64,
+    /// True when the spread exceeds the default warning threshold.
+    pub warning: bool,
+    /// Largest |B| in the body (T).
+    pub peak_flux_density_t: f64,
+    /// Triangles of the central mesh.
+    pub triangles: usize,
+}
+
+/// The result of a case's `[sweep]` section.
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct SweepSummary {
+    /// `gap` or `offset`: what `value_m` of each row is.
+    pub parameter: &'static str,
+    /// The rigid group moved.
+    pub group: String,
+    /// Unit vector of the motion; forces are components along it.
+    pub direction: [f64; 2],
+    /// The regions whose force is reported.
+    pub body: Vec<String>,
+    /// Planar stack depth (m), if planar.
+    pub depth_m: Option<f64>,
+    /// Length unit of the case file, for printing values.
+    pub unit: &'static str,
+    /// The rows, in file order.
+    pub rows: Vec<SweepRow>,
+    /// Wall-clock time of the sweep (s).
+    pub seconds: f64,
+}
+
+/// What can go wrong in a case's sweep.
+#[derive(Debug, Error)]
+#[non_exhaustive]
+pub enum SweepError {
+    /// The case has no `[sweep]` section.
+    #[error("the case has no [sweep] section")]
+    NoSweep,
+    /// Preparing the rigid mesher failed.
+    #[error("sweep: {0}")]
+    Mesh(#[from] crate::case::CaseError),
+    /// Building the model failed (materials, windings, boundaries).
+    #[error("sweep: {0}")]
+    Setup(#[from] SetupError),
+    /// A sweep point failed (the message names the point).
+    #[error("sweep: {0}")]
+    Study(#[from] StudyError),
+}
+
+/// Runs the case's `[sweep]`: moves the rigid group to each point (re-meshing only the air
+/// around it), solves each point and its two co-energy neighbours in parallel with the same
+/// materials, element order and boundaries as the plain solve, and reports the force on the
+/// body by three methods.
+///
+/// # Errors
+/// [`SweepError`], naming the failing point.
+pub fn run_sweep(case: &Case) -> Result<SweepSummary, SweepError> {
+    let started = std::time::Instant::now();
+    let sw = case.sweep().ok_or(SweepError::NoSweep)?;
+    let geometry = case.geometry()?;
+    let group_regions: Vec<&str> = geometry
+        .rigid_groups
+        .iter()
+        .find(|g| g.name == sw.group)
+        .map(|g| g.regions.iter().map(String::as_str).collect())
+        .unwrap_or_default();
+    let rigid = geometry
+        .prepare_rigid()
+        .map_err(|source| crate::case::CaseError::Mesh {
+            source,
+            position: None,
+        })?;
+    // Check the non-mesh parts of the set-up once on the drawn mesh, so that the build
+    // closure below can only meet mesh-dependent model errors.
+    let drawn = rigid
+        .mesh_at(&[])
+        .map_err(|source| crate::case::CaseError::Mesh {
+            source,
+            position: None,
+        })?;
+    let extent = {
+        let v = drawn.vertices();
+        let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
+        for p in v {
+            lo = [lo[0].min(p.x), lo[1].min(p.y)];
+            hi = [hi[0].max(p.x), hi[1].max(p.y)];
+        }
+        (hi[0] - lo[0]).max(hi[1] - lo[1])
+    };
+    model_from_case(case, drawn)?;
+    let build = |mesh: Mesh| {
+        model_from_case(case, mesh).map_err(|e| match e {
+            SetupError::Model(f) => f,
+            other => FemError::Unsupported {
+                what: other.to_string(),
+            },
+        })
+    };
+    let unit = case.unit();
+    let gaps = sw.parameter == SweepParameter::Gap;
+    let points: Vec<TranslationPoint> = sw
+        .values_m
+        .iter()
+        .zip(&sw.offsets_m)
+        .map(|(&v, &o)| TranslationPoint {
+            label: format!(
+                "{} {} {}",
+                if gaps { "gap" } else { "offset" },
+                unit.from_metres(v),
+                unit.symbol()
+            ),
+            parameter: if gaps { v } else { 0.0 },
+            offset: [o * sw.direction[0], o * sw.direction[1]],
+        })
+        .collect();
+    let settings = ForceSweepSettings {
+        group: sw.group.clone(),
+        direction: sw.direction,
+        body: Body::new(&sw.body.iter().map(String::as_str).collect::<Vec<_>>()),
+        group_body: Body::new(&group_regions),
+        // Gaps: a step of a tenth of the gap; offsets: a fixed step of 1e-4 of the model.
+        relative_step: 0.1,
+        min_step_m: if gaps {
+            (1e-5 * extent).max(f64::MIN_POSITIVE)
+        } else {
+            (1e-4 * extent).max(f64::MIN_POSITIVE)
+        },
+        force: ForceSettings::default(),
+    };
+    let points_out = force_sweep(&rigid, &points, &settings, build)?;
+    let depth_m = match case.formulation() {
+        CaseFormulation::Planar => Some(case.depth().unwrap_or(1.0)),
+        CaseFormulation::Axisymmetric => None,
+    };
+    let rows = points_out
+        .iter()
+        .zip(sw.values_m.iter().zip(&sw.offsets_m))
+        .map(|(p, (&v, &o))| SweepRow {
+            value_m: v,
+            offset_m: o,
+            eggshell_n: p.eggshell_n,
+            stress_n: p.stress_n,
+            coenergy_n: p.coenergy_n,
+            per_metre_n_per_m: depth_m
+                .map(|d| [p.eggshell_n / d, p.stress_n / d, p.coenergy_n / d]),
+            spread: p.spread,
+            warning: p.warning,
+            peak_flux_density_t: p.peak_flux_density_t,
+            triangles: p.triangles,
+        })
+        .collect();
+    Ok(SweepSummary {
+        parameter: if gaps { "gap" } else { "offset" },
+        group: sw.group.clone(),
+        direction: sw.direction,
+        body: sw.body.clone(),
+        depth_m,
+        unit: unit.symbol(),
+        rows,
+        seconds: started.elapsed().as_secs_f64(),
+    })
+}
+
+impl std::fmt::Display for SweepSummary {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let scale =
+            crate::case::LengthUnit::from_symbol(self.unit).map_or(1.0, |u| u.from_metres(1.0));
+        let what = match self.depth_m {
+            Some(d) => format!("N for the depth {d} m"),
+            None => "N, total".into(),
+        };
+        writeln!(
+            f,
+            "sweep of rigid group `{}` along ({:.4}, {:.4}): force on {} along the motion \
+             ({what}; negative: pulled against the motion)",
+            self.group,
+            self.direction[0],
+            self.direction[1],
+            self.body.join(" + ")
+        )?;
+        let col = format!("{} ({})", self.parameter, self.unit);
+        write!(
+            f,
+            "{col:>14} | {:>18} | {:>22} | {:>28} | {:>10}",
+            "by eggshell (N)", "by Maxwell stress (N)", "by co-energy difference (N)", "spread (%)"
+        )?;
+        if self.depth_m.is_some() {
+            write!(f, " | {:>18}", "eggshell (N/m)")?;
+        }
+        writeln!(f, " | {:>12}", "peak |B| (T)")?;
+        for r in &self.rows {
+            write!(
+                f,
+                "{:>14.4} | {:>18.3} | {:>22.3} | {:>28.3} | {:>10.2}",
+                r.value_m * scale,
+                r.eggshell_n,
+                r.stress_n,
+                r.coenergy_n,
+                100.0 * r.spread
+            )?;
+            if let Some(m) = r.per_metre_n_per_m {
+                write!(f, " | {:>18.1}", m[0])?;
+            }
+            writeln!(
+                f,
+                " | {:>12.3}{}",
+                r.peak_flux_density_t,
+                if r.warning {
+                    "  <- methods disagree"
+                } else {
+                    ""
+                }
+            )?;
+        }
+        write!(
+            f,
+            "{} sweep points x 3 solves in {:.1} s",
+            self.rows.len(),
+            self.seconds
+        )
+    }
 }
 
 impl std::fmt::Display for SolveSummary {
