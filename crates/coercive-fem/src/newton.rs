@@ -1,4 +1,4 @@
-//! Newton-Raphson with the exact tangent and a back-tracking line search.
+//! Newton-Raphson with the exact tangent and a line search on the energy functional.
 //!
 //! The discrete problem is R(x) = F_int(x) - s F = 0, with F_int the virtual work of H(B)
 //! (magnets' remanence included), F the load of the current densities and s the load scale.
@@ -24,6 +24,10 @@ use serde::{Deserialize, Serialize};
 use crate::assembly::{Assembler, Want};
 use crate::dof::{Layout, FIXED};
 use crate::linsolve::{Factor, FactorError, LinearSolverKind};
+
+/// Line-search acceptance: |g(alpha)| <= this x |g(0)| (a strong-Wolfe-type curvature
+/// condition on the energy's slope; Nocedal & Wright sec. 3.1).
+const LINE_SEARCH_SLOPE: f64 = 0.2;
 
 /// Settings of Newton's method.
 #[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
@@ -292,10 +296,13 @@ pub(crate) fn run(
         }
 
         // Line search on the energy functional Pi(x + alpha dx), convex for monotone laws:
-        // its slope g(alpha) = R(x + alpha dx) . dx is driven towards zero by safeguarded
-        // regula falsi (Illinois variant) until |g| <= 0.5 |g(0)| (a curvature condition,
-        // Nocedal & Wright sec. 3.1). Every trial assembles the tangent too, so the accepted
-        // one is reused by the next iteration.
+        // its slope g(alpha) = R(x + alpha dx) . dx is driven towards zero until
+        // |g| <= LINE_SEARCH_SLOPE |g(0)| (a curvature condition, Nocedal & Wright sec. 3.1).
+        // The full step comes first, so near the solution Newton keeps its quadratic rate.
+        // While g < 0 the step is extrapolated (secant on g, 1.5x to 4x); once a bracket
+        // exists, Illinois regula falsi, or bisection while one end's slope dwarfs the
+        // other's (an exponential law far out); an overflowing trial counts as past the
+        // minimum.
         let g0: f64 = residual.iter().zip(&delta).map(|(r, d)| r * d).sum();
         let evals = if settings.line_search && !linear && g0 < 0.0 {
             settings.max_line_search_evaluations.max(1)
@@ -313,9 +320,11 @@ pub(crate) fn run(
         let (mut hi, mut g_hi) = (f64::NAN, f64::NAN);
         let mut side = 0i32;
         let mut trial_norm = f64::INFINITY;
-        // The full step (usually accepted) assembles the tangent with the force; shorter
+        // The full step (usually accepted) assembles the tangent with the force; other
         // trials assemble the force only, and the tangent is assembled once at the end.
         let mut tangent_at_trial = false;
+        let mut accepted = false;
+        let mut last_g = f64::NAN;
         for k in 0..evals {
             for ((xt, xi), di) in x_trial.iter_mut().zip(&x).zip(&delta) {
                 *xt = xi + alpha * di;
@@ -332,24 +341,41 @@ pub(crate) fn run(
                 n2 += r * r;
             }
             trial_norm = n2.sqrt();
-            if k + 1 == evals
-                || !g.is_finite()
-                || g.abs() <= 0.5 * g0.abs()
-                || trial_norm <= settings.residual_tolerance * reference
-                || (g < 0.0 && hi.is_nan())
+            last_g = g;
+            if evals == 1
+                || (g.is_finite()
+                    && (g.abs() <= LINE_SEARCH_SLOPE * g0.abs()
+                        || trial_norm <= settings.residual_tolerance * reference))
             {
-                if !g.is_finite() && k + 1 < evals {
-                    // Overflow far out: treat as the far side of the minimum.
-                    hi = alpha;
-                    g_hi = f64::MAX;
-                    alpha = 0.5 * (lo + hi);
-                    continue;
-                }
+                accepted = true;
                 break;
             }
+            if k + 1 == evals {
+                break;
+            }
+            if !g.is_finite() || !trial_norm.is_finite() {
+                // Overflow far out (an exponential law): the far side of the minimum.
+                hi = alpha;
+                g_hi = f64::INFINITY;
+                side = 1;
+                alpha = 0.5 * (lo + hi);
+                continue;
+            }
             if g < 0.0 {
+                let (a_prev, g_prev) = (lo, g_lo);
                 lo = alpha;
                 g_lo = g;
+                if hi.is_nan() {
+                    // The minimum lies beyond: extrapolate along the secant of the slope,
+                    // by at least 1.5x and at most 4x.
+                    let guess = alpha - g * (alpha - a_prev) / (g - g_prev);
+                    alpha = if guess.is_finite() && g > g_prev {
+                        guess.clamp(1.5 * alpha, 4.0 * alpha)
+                    } else {
+                        2.0 * alpha
+                    };
+                    continue;
+                }
                 if side == -1 {
                     g_hi *= 0.5;
                 }
@@ -362,20 +388,33 @@ pub(crate) fn run(
                 }
                 side = 1;
             }
-            let guess = lo - g_lo * (hi - lo) / (g_hi - g_lo);
+            // Inside the bracket [lo, hi]: Illinois regula falsi while the end slopes are
+            // comparable, bisection while one dwarfs the other (an exponential law's slope
+            // far out would otherwise pin the secant to the near end).
             let w = hi - lo;
-            alpha = if guess.is_finite() {
-                guess.clamp(lo + 0.02 * w, hi - 0.02 * w)
-            } else {
+            let ratio = g_hi.abs().max(g_lo.abs()) / g_hi.abs().min(g_lo.abs());
+            let guess = lo - g_lo * w / (g_hi - g_lo);
+            alpha = if ratio > 1e6 || !ratio.is_finite() || !guess.is_finite() {
                 0.5 * (lo + hi)
+            } else if ratio <= 10.0 {
+                guess.clamp(lo + 0.05 * w, hi - 0.05 * w)
+            } else if g_hi.abs() > g_lo.abs() {
+                // Between the secant (w / ratio from the small end) and bisection.
+                lo + w * (1.0 / ratio.sqrt()).max(0.05)
+            } else {
+                hi - w * (1.0 / ratio.sqrt()).max(0.05)
             };
         }
-        if !trial_norm.is_finite() {
-            return Err(RunError::Failed(fail(
-                NewtonFailureReason::LineSearch,
-                &report,
-                a,
-            )));
+        if !accepted && lo > 0.0 && !(last_g <= 0.0 && trial_norm.is_finite()) {
+            // No trial met the slope test and the last one lies past the minimum: fall back to
+            // the largest step known to lie before it, where the energy is below Pi(x) for a
+            // convex functional.
+            alpha = lo;
+            for ((xt, xi), di) in x_trial.iter_mut().zip(&x).zip(&delta) {
+                *xt = xi + alpha * di;
+            }
+            expand(layout, &x_trial, &mut a_trial);
+            tangent_at_trial = false;
         }
         if !linear && !tangent_at_trial {
             assemble(
@@ -385,6 +424,19 @@ pub(crate) fn run(
                 &mut values,
                 &mut report.times,
             );
+            trial_norm = force
+                .iter()
+                .zip(load)
+                .map(|(f, l)| (f - l) * (f - l))
+                .sum::<f64>()
+                .sqrt();
+        }
+        if !trial_norm.is_finite() {
+            return Err(RunError::Failed(fail(
+                NewtonFailureReason::LineSearch,
+                &report,
+                a,
+            )));
         }
         std::mem::swap(&mut x, &mut x_trial);
         a.copy_from_slice(&a_trial);
