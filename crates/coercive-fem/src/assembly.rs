@@ -16,9 +16,11 @@ use rayon::prelude::*;
 
 use crate::dof::{Layout, FIXED};
 use crate::element::{shape_gradients, shape_values, AffineTriangle, ElementOrder, MAX_NODES};
+use crate::hysteresis::History;
 use crate::material::Material;
 use crate::model::{Formulation, Model};
 use crate::quadrature::TriangleRule;
+use crate::state::MagnetState;
 use crate::FemError;
 
 /// Triangles per parallel chunk.
@@ -205,6 +207,7 @@ pub(crate) fn triangle_map(mesh: &Mesh, t: usize) -> AffineTriangle {
 pub(crate) fn easy_axis(material: &Material, point: [f64; 2], centroid: [f64; 2]) -> [f64; 2] {
     match material {
         Material::Magnet(m) => m.direction.easy_axis_at(point, centroid),
+        Material::Hysteretic(m) => m.direction.easy_axis_at(point, centroid),
         _ => [1.0, 0.0],
     }
 }
@@ -224,6 +227,9 @@ pub(crate) struct Assembler<'a> {
     pub layout: &'a Layout,
     pub pattern: &'a Pattern,
     pub rule: TriangleRule,
+    /// The committed histories of the hysteretic points (checked against the model), if the
+    /// model has any.
+    pub state: Option<&'a MagnetState>,
 }
 
 impl Assembler<'_> {
@@ -291,14 +297,19 @@ impl Assembler<'_> {
             *x = a[d as usize];
         }
         out.fill(0.0);
-        for (l, wq) in self.rule.points.iter().zip(self.rule.weights) {
+        let histories = self.histories(material, t);
+        for (q, (l, wq)) in self.rule.points.iter().zip(self.rule.weights).enumerate() {
             let op = point_operator(model.formulation(), self.layout.order, &tri, *l, *wq);
             let mut b = [0.0; 2];
             for j in 0..nloc {
                 b[0] += op.coef[j][0] * al[j];
                 b[1] += op.coef[j][1] * al[j];
             }
-            let resp = material.response(b, easy_axis(material, op.point, centroid));
+            let resp = material.response_with(
+                b,
+                easy_axis(material, op.point, centroid),
+                histories.map(|h| &h[q]),
+            );
             // Reluctivity scale of an axisymmetric open-boundary image (1 elsewhere): it
             // multiplies H and dH/dB alike, so folding it into the weight is exact.
             let w = op.weight * model.reluctivity_scale(region, op.point);
@@ -321,12 +332,26 @@ impl Assembler<'_> {
         }
     }
 
+    /// The committed histories of triangle `t`'s quadrature points if its material is
+    /// hysteretic and a state is given.
+    #[inline]
+    pub(crate) fn histories(&self, material: &Material, t: usize) -> Option<&[History]> {
+        if material.is_hysteretic() {
+            self.state.and_then(|s| s.histories_of(t))
+        } else {
+            None
+        }
+    }
+
     /// The stored energy (J/m planar, J axisymmetric) of each region for potential `a`, by
     /// integrating the material's energy density, and the co-energy likewise.
     pub fn energies(&self, a: &[f64]) -> (Vec<f64>, Vec<f64>) {
         let nreg = self.model.mesh().regions().len();
-        let per_t = self.per_triangle(a, |m, b, e| {
-            (m.energy_density(b, e), m.coenergy_density(b, e))
+        let per_t = self.per_triangle(a, |m, b, e, h| {
+            (
+                m.energy_density_with(b, e, h),
+                m.coenergy_density_with(b, e, h),
+            )
         });
         let mut energy = vec![0.0; nreg];
         let mut coenergy = vec![0.0; nreg];
@@ -342,7 +367,7 @@ impl Assembler<'_> {
     fn per_triangle(
         &self,
         a: &[f64],
-        f: impl Fn(&Material, [f64; 2], [f64; 2]) -> (f64, f64) + Sync,
+        f: impl Fn(&Material, [f64; 2], [f64; 2], Option<&History>) -> (f64, f64) + Sync,
     ) -> Vec<(f64, f64)> {
         let model = self.model;
         let mesh = model.mesh();
@@ -356,7 +381,8 @@ impl Assembler<'_> {
                 let tri = triangle_map(mesh, t);
                 let dofs = self.layout.triangle_dofs(t);
                 let mut sum = (0.0, 0.0);
-                for (l, wq) in self.rule.points.iter().zip(self.rule.weights) {
+                let histories = self.histories(material, t);
+                for (q, (l, wq)) in self.rule.points.iter().zip(self.rule.weights).enumerate() {
                     let op = point_operator(model.formulation(), self.layout.order, &tri, *l, *wq);
                     let mut b = [0.0; 2];
                     for j in 0..nloc {
@@ -364,7 +390,12 @@ impl Assembler<'_> {
                         b[0] += op.coef[j][0] * aj;
                         b[1] += op.coef[j][1] * aj;
                     }
-                    let v = f(material, b, easy_axis(material, op.point, centroid));
+                    let v = f(
+                        material,
+                        b,
+                        easy_axis(material, op.point, centroid),
+                        histories.map(|h| &h[q]),
+                    );
                     // The image region of an axisymmetric open boundary: energy densities
                     // scale with its reluctivity (the region is linear air).
                     let w = op.weight * model.reluctivity_scale(region, op.point);
@@ -374,6 +405,38 @@ impl Assembler<'_> {
                 sum
             })
             .collect()
+    }
+
+    /// The source integral of every node (free or fixed) for a uniform current density
+    /// `region_density[r]` (A/m^2) in each region: integral(J N_i) per metre (planar) or with
+    /// 2 pi r (axisymmetric). With the density per ampere of a winding, its dot product with
+    /// the nodal potential is the winding's flux linkage (Wb per metre planar, Wb axisymmetric).
+    pub fn nodal_source(&self, region_density: &[f64]) -> Vec<f64> {
+        let model = self.model;
+        let mesh = model.mesh();
+        let nloc = self.layout.nloc;
+        let order = self.layout.order;
+        let axisymmetric = model.formulation() == Formulation::Axisymmetric;
+        let rule = TriangleRule::of_degree(if axisymmetric { 4 } else { 2 });
+        let mut out = vec![0.0; self.layout.ndofs()];
+        for (t, r) in mesh.triangle_regions().iter().enumerate() {
+            let j = region_density[r.index()];
+            if j == 0.0 {
+                continue;
+            }
+            let tri = triangle_map(mesh, t);
+            let dofs = self.layout.triangle_dofs(t);
+            for (l, wq) in rule.points.iter().zip(rule.weights) {
+                let p = tri.point(*l);
+                let v = shape_values(order, *l);
+                let factor = if axisymmetric { 2.0 * PI * p[0] } else { 1.0 };
+                let w = factor * tri.area * wq * j;
+                for i in 0..nloc {
+                    out[dofs[i] as usize] += w * v[i];
+                }
+            }
+        }
+        out
     }
 
     /// The load vector of the current densities on the free equations: integral(J v) per
@@ -483,6 +546,7 @@ mod tests {
                     layout: &layout,
                     pattern: &pattern,
                     rule: stiffness_rule(formulation, order),
+                    state: None,
                 };
                 let n = layout.ndofs();
                 // A potential of about 1.5 T over 1 cm with some variation.

@@ -53,6 +53,18 @@ pub enum FemError {
         /// Why.
         reason: String,
     },
+    /// A magnet state does not belong to the model it is used with.
+    #[error("the magnet state does not fit this model: {reason}")]
+    IncompatibleState {
+        /// What differs.
+        reason: String,
+    },
+    /// A pulse or load history is invalid (no steps, an unknown winding, a non-finite current).
+    #[error("pulse: {reason}")]
+    InvalidPulse {
+        /// What is wrong.
+        reason: String,
+    },
     /// A number that must be finite is NaN or infinite.
     #[error("{what} is not a finite number ({value})")]
     NotFinite {

@@ -7,28 +7,33 @@ pub mod bh;
 mod dof;
 pub mod element;
 mod error;
+pub mod hysteresis;
 pub mod library;
 mod linsolve;
 pub mod material;
 pub mod model;
 pub mod newton;
+mod pulse;
 pub mod quadrature;
 mod solution;
 mod solver;
+mod state;
 
 pub use bh::{BhCurve, BhKnot, BhTable};
 pub use element::ElementOrder;
 pub use error::FemError;
+pub use hysteresis::{History, HysteresisLaw};
 pub use linsolve::LinearSolverKind;
 pub use material::{
-    LinearMagnet, MagnetDirection, Material, MaterialError, Response, SoftMagnetic, MU_0,
+    HystereticMagnet, InitialMagnetisation, LinearMagnet, MagnetDirection, Material, MaterialError,
+    Response, SoftMagnetic, MU_0,
 };
 pub use model::{
     BoundaryCondition, Formulation, Model, ModelBuilder, OpenBoundary, PotentialValue, ScalarField,
     Sense, Winding, WindingSide,
 };
-pub use newton::{
-    NewtonFailure, NewtonFailureReason, NewtonReport, NewtonSettings, PhaseTimes, QuadratureState,
-};
+pub use newton::{NewtonFailure, NewtonFailureReason, NewtonReport, NewtonSettings, PhaseTimes};
+pub use pulse::{HistoryError, HistoryRun, HistorySettings, HistoryStep, KeepSolutions, Pulse};
 pub use solution::Solution;
 pub use solver::Solver;
+pub use state::MagnetState;

@@ -8,6 +8,7 @@ use serde::{Deserialize, Serialize};
 use thiserror::Error;
 
 use crate::bh::BhCurve;
+use crate::hysteresis::{History, HysteresisLaw};
 
 /// Vacuum permeability mu_0 (H/m), the pre-2019 exact value 4 pi 1e-7 (the 2019 SI value
 /// differs by less than 1e-9 relative).
@@ -38,6 +39,14 @@ pub enum MagnetDirection {
         /// True for outward magnetisation.
         outward: bool,
     },
+    /// Around `centre` at each point (counter-clockwise, or clockwise if `counter_clockwise`
+    /// is false): a circumferentially magnetised ring.
+    Azimuthal {
+        /// Centre of the pattern (m).
+        centre: [f64; 2],
+        /// True for counter-clockwise magnetisation.
+        counter_clockwise: bool,
+    },
     /// Uniform over the region, along the line from `centre` to the region's centroid
     /// (outward, or inward if `outward` is false): parallel magnetisation of a machine pole.
     Parallel {
@@ -60,6 +69,77 @@ pub struct LinearMagnet {
     pub perpendicular_permeability: f64,
     /// Layout of the easy axis.
     pub direction: MagnetDirection,
+}
+
+/// The magnetisation a hysteretic magnet starts from when no [`MagnetState`](crate::MagnetState)
+/// is given: saturated along its easy axis (as delivered), or against it.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum InitialMagnetisation {
+    /// Saturated along the easy axis, then the field removed (the remanent state).
+    #[default]
+    Forward,
+    /// Saturated against the easy axis, then the field removed.
+    Reverse,
+}
+
+/// A permanent magnet with magnetic history: along its easy axis e the flux density is
+/// B_e = mu_0 H_e + J(H_e; history) (the scalar hysteresis law of [`HysteresisLaw`]), across it
+/// B_p = mu_0 mu_perp H_p (reversible, linear).
+///
+/// The history of every quadrature point lives in a [`MagnetState`](crate::MagnetState),
+/// committed only after a load step converges; within a step the law seen by Newton's method
+/// is the branch that leaves the committed state, which is single-valued and monotone in B_e,
+/// so each step is a convex minimisation and the tangent stays symmetric positive definite.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct HystereticMagnet {
+    /// The scalar law along the easy axis.
+    pub law: HysteresisLaw,
+    /// Relative permeability across the easy axis (at least 1).
+    pub perpendicular_permeability: f64,
+    /// Layout of the easy axis.
+    pub direction: MagnetDirection,
+    /// The state used when a solve starts without a [`MagnetState`](crate::MagnetState).
+    #[serde(default)]
+    pub initial: InitialMagnetisation,
+}
+
+impl HystereticMagnet {
+    /// The history of a point that has not been solved yet.
+    pub fn initial_history(&self) -> History {
+        History::saturated(self.initial == InitialMagnetisation::Forward)
+    }
+
+    /// Response at `b` (T) with easy axis `e` and the committed `history` of this point.
+    pub fn response(&self, b: [f64; 2], e: [f64; 2], history: &History) -> Response {
+        let p = [-e[1], e[0]];
+        let be = b[0] * e[0] + b[1] * e[1];
+        let bp = b[0] * p[0] + b[1] * p[1];
+        let (he, dhe) = self.law.field_strength(history, be);
+        let nu_p = 1.0 / (MU_0 * self.perpendicular_permeability);
+        let hp = nu_p * bp;
+        let mut dh_db = [[0.0; 2]; 2];
+        for (i, row) in dh_db.iter_mut().enumerate() {
+            for (j, v) in row.iter_mut().enumerate() {
+                *v = dhe * e[i] * e[j] + nu_p * p[i] * p[j];
+            }
+        }
+        Response {
+            h: [he * e[0] + hp * p[0], he * e[1] + hp * p[1]],
+            dh_db,
+        }
+    }
+
+    /// Co-energy density (J/m^3) at `b` along the branch leaving `history`: the integral of
+    /// B dH from H = 0 along the easy axis plus mu_0 mu_perp H_p^2 / 2 across it.
+    pub fn coenergy_density(&self, b: [f64; 2], e: [f64; 2], history: &History) -> f64 {
+        let p = [-e[1], e[0]];
+        let be = b[0] * e[0] + b[1] * e[1];
+        let bp = b[0] * p[0] + b[1] * p[1];
+        let (he, _) = self.law.field_strength(history, be);
+        self.law.coenergy_density(history, he)
+            + 0.5 * bp * bp / (MU_0 * self.perpendicular_permeability)
+    }
 }
 
 /// A nonlinear isotropic soft magnetic material from a B-H curve.
@@ -108,6 +188,8 @@ pub enum Material {
         /// k3 (A/(m T)), positive: the reluctivity nu(0) = k1 + k3 is then positive.
         k3: f64,
     },
+    /// Permanent magnet with magnetic history (hysteresis along its easy axis).
+    Hysteretic(HystereticMagnet),
 }
 
 /// Invalid material data: B-H points, law parameters, magnet values or an unknown preset.
@@ -225,7 +307,8 @@ impl MagnetDirection {
     /// Unit easy-axis vector at `point` (m) of a magnet whose region has centroid
     /// `region_centroid` (m).
     ///
-    /// `Fixed` ignores both arguments; `Radial` points from the centre to `point`; `Parallel`
+    /// `Fixed` ignores both arguments; `Radial` points from the centre to `point`; `Azimuthal`
+    /// is the radial direction turned by +90 degrees (or -90); `Parallel`
     /// points from the centre to the region centroid (uniform over the region). Inward patterns
     /// are reversed. A degenerate radial direction (point on the centre) falls back to the
     /// centroid direction, and a degenerate centroid direction to +x, so the result is always a
@@ -252,6 +335,19 @@ impl MagnetDirection {
                     [-e[0], -e[1]]
                 }
             }
+            MagnetDirection::Azimuthal {
+                centre,
+                counter_clockwise,
+            } => {
+                let r = towards(centre, point)
+                    .or_else(|| towards(centre, region_centroid))
+                    .unwrap_or([1.0, 0.0]);
+                if counter_clockwise {
+                    [-r[1], r[0]]
+                } else {
+                    [r[1], -r[0]]
+                }
+            }
             MagnetDirection::Parallel { centre, outward } => {
                 let e = towards(centre, region_centroid).unwrap_or([1.0, 0.0]);
                 if outward {
@@ -274,7 +370,9 @@ impl MagnetDirection {
             MagnetDirection::Fixed { angle } if !angle.is_finite() => {
                 Err(bad("angle (rad)", angle))
             }
-            MagnetDirection::Radial { centre, .. } | MagnetDirection::Parallel { centre, .. } => {
+            MagnetDirection::Radial { centre, .. }
+            | MagnetDirection::Parallel { centre, .. }
+            | MagnetDirection::Azimuthal { centre, .. } => {
                 for v in centre {
                     if !v.is_finite() {
                         return Err(bad("centre (m)", v));
@@ -364,8 +462,26 @@ impl Material {
     /// - Magnet: H = nu_par (B.e - Br) e + nu_perp (B.e_perp) e_perp with nu = 1/(mu_0 mu_r).
     /// - Brauer: H = nu B with nu = k1 exp(k2 |B|^2) + k3, tangent
     ///   nu I + 2 k1 k2 exp(k2 |B|^2) B B^T.
+    ///
+    /// A hysteretic magnet is evaluated from its initial state here; the solver passes each
+    /// point's committed history through [`Material::response_with`].
     pub fn response(&self, b: [f64; 2], easy_axis: [f64; 2]) -> Response {
+        self.response_with(b, easy_axis, None)
+    }
+
+    /// As [`Material::response`], with the committed `history` of the point for a hysteretic
+    /// magnet (`None`: its initial state); other laws ignore `history`.
+    pub fn response_with(
+        &self,
+        b: [f64; 2],
+        easy_axis: [f64; 2],
+        history: Option<&History>,
+    ) -> Response {
         match self {
+            Material::Hysteretic(m) => match history {
+                Some(h) => m.response(b, easy_axis, h),
+                None => m.response(b, easy_axis, &m.initial_history()),
+            },
             Material::Linear {
                 relative_permeability,
             } => {
@@ -426,8 +542,25 @@ impl Material {
 
     /// Energy density w (J/m^3): the integral of H . dB from the state H = 0 to `b` (T).
     /// For magnets the H = 0 state is B = Br e. Exact for the interpolated B-H curve.
+    ///
+    /// A hysteretic magnet's energy density is B.H - w' with w' its co-energy density along the
+    /// branch leaving the point's state (see [`Material::coenergy_density_with`]).
     pub fn energy_density(&self, b: [f64; 2], easy_axis: [f64; 2]) -> f64 {
+        self.energy_density_with(b, easy_axis, None)
+    }
+
+    /// As [`Material::energy_density`], with the committed history of a hysteretic point.
+    pub fn energy_density_with(
+        &self,
+        b: [f64; 2],
+        easy_axis: [f64; 2],
+        history: Option<&History>,
+    ) -> f64 {
         match self {
+            Material::Hysteretic(_) => {
+                let r = self.response_with(b, easy_axis, history);
+                b[0] * r.h[0] + b[1] * r.h[1] - self.coenergy_density_with(b, easy_axis, history)
+            }
             Material::Linear { .. } | Material::Anisotropic { .. } | Material::Magnet(_) => {
                 let r = self.response(b, easy_axis);
                 // Quadratic laws: w = (B - B_r).H / 2 with H linear in (B - B_r).
@@ -455,15 +588,40 @@ impl Material {
 
     /// Co-energy density w' = B.H - w (J/m^3) at `b` (T).
     pub fn coenergy_density(&self, b: [f64; 2], easy_axis: [f64; 2]) -> f64 {
-        let r = self.response(b, easy_axis);
-        b[0] * r.h[0] + b[1] * r.h[1] - self.energy_density(b, easy_axis)
+        self.coenergy_density_with(b, easy_axis, None)
+    }
+
+    /// As [`Material::coenergy_density`], with the committed history of a hysteretic point:
+    /// the integral of B dH from H = 0 along the branch that leaves that history (the law
+    /// seen during the current load step, frozen for virtual displacements).
+    pub fn coenergy_density_with(
+        &self,
+        b: [f64; 2],
+        easy_axis: [f64; 2],
+        history: Option<&History>,
+    ) -> f64 {
+        match self {
+            Material::Hysteretic(m) => match history {
+                Some(h) => m.coenergy_density(b, easy_axis, h),
+                None => m.coenergy_density(b, easy_axis, &m.initial_history()),
+            },
+            _ => {
+                let r = self.response(b, easy_axis);
+                b[0] * r.h[0] + b[1] * r.h[1] - self.energy_density(b, easy_axis)
+            }
+        }
+    }
+
+    /// True for laws with magnetic history (their state is kept per quadrature point).
+    pub fn is_hysteretic(&self) -> bool {
+        matches!(self, Material::Hysteretic(_))
     }
 
     /// True when H is affine in B (the tangent is constant): one linear solve suffices.
     /// A Brauer law is linear only when k1 or k2 is zero.
     pub fn is_linear(&self) -> bool {
         match self {
-            Material::Soft(_) => false,
+            Material::Soft(_) | Material::Hysteretic(_) => false,
             Material::Brauer { k1, k2, .. } => *k1 == 0.0 || *k2 == 0.0,
             _ => true,
         }
@@ -515,6 +673,16 @@ impl Material {
             }
             // The curve was checked when it was built or deserialised.
             Material::Soft(_) => Ok(()),
+            Material::Hysteretic(m) => {
+                m.law.validate()?;
+                check_permeability(
+                    "hysteretic magnet",
+                    "perpendicular permeability",
+                    m.perpendicular_permeability,
+                    true,
+                )?;
+                m.direction.validate()
+            }
             Material::Magnet(m) => {
                 if !(m.remanence.is_finite() && m.remanence >= 0.0) {
                     return Err(MaterialError::InvalidParameter {

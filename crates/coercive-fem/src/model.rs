@@ -568,6 +568,61 @@ impl Model {
         &self.region_centroids
     }
 
+    /// This model with winding `name` carrying `current_a` amperes per turn instead (the
+    /// current densities of its sides follow; nothing else is rebuilt).
+    ///
+    /// # Errors
+    /// [`FemError::InvalidPulse`] if no winding has that name, [`FemError::NotFinite`] for a
+    /// non-finite current.
+    pub fn with_winding_current(&self, name: &str, current_a: f64) -> Result<Model, FemError> {
+        if !current_a.is_finite() {
+            return Err(FemError::NotFinite {
+                what: format!("current of winding `{name}` (A)"),
+                value: current_a,
+            });
+        }
+        let k = self
+            .spec
+            .windings
+            .iter()
+            .position(|w| w.name == name)
+            .ok_or_else(|| FemError::InvalidPulse {
+                reason: format!(
+                    "winding `{name}` is not in the model (windings: {})",
+                    self.spec
+                        .windings
+                        .iter()
+                        .map(|w| format!("`{}`", w.name))
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                ),
+            })?;
+        let mut m = self.clone();
+        let w = &mut m.spec.windings[k];
+        let delta = current_a - w.current_a;
+        w.current_a = current_a;
+        for side in &w.sides {
+            // Sides were validated when the model was built.
+            if let Some(r) = m.mesh.region_by_name(&side.region) {
+                m.region_current_density[r.index()] +=
+                    side.sense.sign() * w.turns * delta / m.region_areas[r.index()];
+            }
+        }
+        Ok(m)
+    }
+
+    /// The current density (A/m^2) per ampere of winding `k`'s current in each region.
+    pub(crate) fn winding_density_per_ampere(&self, k: usize) -> Vec<f64> {
+        let mut j = vec![0.0; self.region_areas.len()];
+        let w = &self.spec.windings[k];
+        for side in &w.sides {
+            if let Some(r) = self.mesh.region_by_name(&side.region) {
+                j[r.index()] += side.sense.sign() * w.turns / self.region_areas[r.index()];
+            }
+        }
+        j
+    }
+
     /// The windings.
     pub fn windings(&self) -> &[Winding] {
         &self.spec.windings

@@ -128,32 +128,6 @@ impl fmt::Display for NewtonFailure {
     }
 }
 
-/// Per-quadrature-point material state with a committed and a trial copy, for history-
-/// dependent (hysteretic) laws. The laws implemented today are history-free and use no slots
-/// (`slots_per_point == 0`); the arrays are kept so that load steps commit a converged state
-/// and discard a failed one.
-#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
-pub struct QuadratureState {
-    /// Values per quadrature point.
-    pub slots_per_point: usize,
-    /// State after the last converged load step.
-    pub committed: Vec<f64>,
-    /// State of the current iterate.
-    pub trial: Vec<f64>,
-}
-
-impl QuadratureState {
-    /// Adopts the trial state after a converged step.
-    pub fn commit(&mut self) {
-        self.committed.clone_from(&self.trial);
-    }
-
-    /// Returns to the committed state after a failed step.
-    pub fn discard(&mut self) {
-        self.trial.clone_from(&self.committed);
-    }
-}
-
 /// Expands free unknowns `x` into nodal potentials `a` (fixed nodes from the layout).
 pub(crate) fn expand(layout: &Layout, x: &[f64], a: &mut [f64]) {
     for (d, ad) in a.iter_mut().enumerate() {

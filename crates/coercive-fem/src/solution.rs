@@ -12,8 +12,9 @@ use crate::assembly::{easy_axis, point_operator, triangle_map, Assembler, Patter
 use crate::dof::Layout;
 use crate::element::{shape_gradients, shape_values, ElementOrder};
 use crate::model::{Formulation, Model};
-use crate::newton::{NewtonReport, QuadratureState};
+use crate::newton::NewtonReport;
 use crate::quadrature::TriangleRule;
+use crate::state::MagnetState;
 use crate::FemError;
 
 /// A solved model.
@@ -36,7 +37,8 @@ pub struct Solution {
     region_peak_b: Vec<f64>,
     newton: NewtonReport,
     load_scale: f64,
-    state: QuadratureState,
+    /// The committed magnet state after this solution (the histories with this field applied).
+    state: MagnetState,
 }
 
 impl Solution {
@@ -47,8 +49,9 @@ impl Solution {
         rule: TriangleRule,
         newton: NewtonReport,
         load_scale: f64,
-        state: QuadratureState,
+        previous: &MagnetState,
     ) -> Solution {
+        let state_ref = (!previous.is_empty()).then_some(previous);
         let mesh = model.mesh().clone();
         let nq = rule.len();
         let nloc = layout.nloc;
@@ -64,22 +67,35 @@ impl Solution {
                 let tri = triangle_map(&mesh, t);
                 let dofs = layout.triangle_dofs(t);
                 let potential = &potential;
-                rule.points.iter().zip(rule.weights).map(move |(l, wq)| {
-                    let op = point_operator(formulation, order, &tri, *l, *wq);
-                    let mut b = [0.0; 2];
-                    for j in 0..nloc {
-                        let aj = potential[dofs[j] as usize];
-                        b[0] += op.coef[j][0] * aj;
-                        b[1] += op.coef[j][1] * aj;
-                    }
-                    let h = material
-                        .response(b, easy_axis(material, op.point, centroid))
-                        .h;
-                    // The image region of an axisymmetric open boundary has a scaled
-                    // reluctivity (1 elsewhere).
-                    let s = model_ref.reluctivity_scale(region, op.point);
-                    [b, [s * h[0], s * h[1]]]
-                })
+                let histories = if material.is_hysteretic() {
+                    state_ref.and_then(|s| s.histories_of(t))
+                } else {
+                    None
+                };
+                rule.points
+                    .iter()
+                    .zip(rule.weights)
+                    .enumerate()
+                    .map(move |(q, (l, wq))| {
+                        let op = point_operator(formulation, order, &tri, *l, *wq);
+                        let mut b = [0.0; 2];
+                        for j in 0..nloc {
+                            let aj = potential[dofs[j] as usize];
+                            b[0] += op.coef[j][0] * aj;
+                            b[1] += op.coef[j][1] * aj;
+                        }
+                        let h = material
+                            .response_with(
+                                b,
+                                easy_axis(material, op.point, centroid),
+                                histories.map(|h| &h[q]),
+                            )
+                            .h;
+                        // The image region of an axisymmetric open boundary has a scaled
+                        // reluctivity (1 elsewhere).
+                        let s = model_ref.reluctivity_scale(region, op.point);
+                        [b, [s * h[0], s * h[1]]]
+                    })
             })
             .collect();
         let flux_density: Vec<[f64; 2]> = per_t.iter().map(|x| x[0]).collect();
@@ -106,8 +122,14 @@ impl Solution {
             layout: &layout,
             pattern: &empty,
             rule,
+            state: state_ref,
         };
         let (region_energy, region_coenergy) = asm.energies(&potential);
+        let state = if previous.is_empty() {
+            previous.clone()
+        } else {
+            previous.committed_with(&model, rule, &field_strength)
+        };
         Solution {
             model,
             layout,
@@ -122,6 +144,12 @@ impl Solution {
             load_scale,
             state,
         }
+    }
+
+    /// Adds `seconds` to the reported assembly time (the load vector assembled once for
+    /// several steps).
+    pub(crate) fn add_assembly_time(&mut self, seconds: f64) {
+        self.newton.times.assembly_s += seconds;
     }
 
     /// The model this solution belongs to.
@@ -234,8 +262,10 @@ impl Solution {
         self.load_scale
     }
 
-    /// The per-quadrature-point material state after this step.
-    pub fn state(&self) -> &QuadratureState {
+    /// The committed magnet state after this solution: every hysteretic point's history with
+    /// this solution's field applied (empty without hysteretic materials). Start the next load
+    /// step, or another branch of a study, from it.
+    pub fn magnet_state(&self) -> &MagnetState {
         &self.state
     }
 

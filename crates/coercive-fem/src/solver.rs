@@ -8,8 +8,9 @@ use coercive_mesh::Mesh;
 use crate::assembly::{stiffness_rule, Assembler, Pattern};
 use crate::dof::{Layout, FIXED};
 use crate::linsolve::{Factor, LinearSolverKind, Symbolic};
-use crate::newton::{self, NewtonFailureReason, NewtonSettings, QuadratureState, RunError};
+use crate::newton::{self, NewtonFailureReason, NewtonSettings, RunError};
 use crate::solution::Solution;
+use crate::state::MagnetState;
 use crate::{FemError, Model};
 
 /// Everything about a model's discretisation that does not depend on material values or
@@ -106,7 +107,8 @@ impl Solver {
         Ok(Arc::new(layout))
     }
 
-    /// Solves `model` from zero potential on the free nodes.
+    /// Solves `model` from zero potential on the free nodes (hysteretic magnets in their
+    /// initial state).
     ///
     /// # Errors
     /// [`FemError::IncompatibleModel`], [`FemError::NewtonFailed`] (with the last iterate and
@@ -118,7 +120,8 @@ impl Solver {
     }
 
     /// Solves `model` starting from the potential of `initial` (a warm start, e.g. the
-    /// previous point of a sweep on the same mesh).
+    /// previous point of a sweep on the same mesh). Hysteretic magnets start from their
+    /// initial state, not from `initial`'s (use [`Solver::solve_with_state`] for that).
     ///
     /// # Errors
     /// As [`Solver::solve`]; also if `initial` has a different number of nodes.
@@ -132,10 +135,38 @@ impl Solver {
         Ok(steps.remove(0))
     }
 
+    /// Solves `model` with its hysteretic magnets in the committed `state` (e.g. the state a
+    /// pulse left behind), optionally warm-started from the potential of `initial`. The
+    /// returned solution's [`Solution::magnet_state`] is `state` with this field applied; the
+    /// given `state` is not changed, so one state serves a whole sweep (every gap of a
+    /// force study with a moving part keeps the magnets' triangles).
+    ///
+    /// # Errors
+    /// As [`Solver::solve_from`]; [`FemError::IncompatibleState`] if `state` belongs to
+    /// another mesh or material layout.
+    pub fn solve_with_state(
+        &self,
+        model: &Model,
+        state: &MagnetState,
+        initial: Option<&Solution>,
+        settings: &NewtonSettings,
+    ) -> Result<Solution, FemError> {
+        state.check(model)?;
+        let mut steps = self.steps(
+            model,
+            &[1.0],
+            initial.map(|s| s.potential()),
+            state,
+            settings,
+        )?;
+        Ok(steps.remove(0))
+    }
+
     /// Solves a sequence of load steps: the current densities (windings included) are scaled
     /// by each factor in turn (remanence and fixed potentials are not scaled), each step
-    /// starting from the previous converged one (or from `initial`). Material state is
-    /// committed after each converged step.
+    /// starting from the previous converged one (or from `initial`'s potential). Hysteretic
+    /// magnets start from their initial state; each converged step commits their histories
+    /// and the next step starts from that committed state.
     ///
     /// # Errors
     /// As [`Solver::solve`]; the first failing step ends the sequence.
@@ -144,6 +175,25 @@ impl Solver {
         model: &Model,
         scales: &[f64],
         initial: Option<&Solution>,
+        settings: &NewtonSettings,
+    ) -> Result<Vec<Solution>, FemError> {
+        let state = MagnetState::initial(model);
+        self.steps(
+            model,
+            scales,
+            initial.map(|s| s.potential()),
+            &state,
+            settings,
+        )
+    }
+
+    /// The load steps of [`Solver::solve_load_steps`] from a given state and potential.
+    fn steps(
+        &self,
+        model: &Model,
+        scales: &[f64],
+        initial: Option<&[f64]>,
+        state: &MagnetState,
         settings: &NewtonSettings,
     ) -> Result<Vec<Solution>, FemError> {
         let layout = self.layout_for(model)?;
@@ -157,70 +207,120 @@ impl Solver {
         }
         let model = Arc::new(model.clone());
         let rule = stiffness_rule(model.formulation(), model.order());
-        let asm = Assembler {
+        let t0 = std::time::Instant::now();
+        let load = Assembler {
             model: &model,
             layout: &layout,
             pattern: &self.pattern,
             rule,
-        };
-        let t0 = std::time::Instant::now();
-        let load = asm.load()?;
-        let load_time = t0.elapsed().as_secs_f64();
-        let mut a = vec![0.0; layout.ndofs()];
-        if let Some(init) = initial {
-            if init.potential().len() != a.len() {
-                return Err(FemError::IncompatibleModel {
-                    reason: format!(
-                        "initial solution has {} nodes, the model {}",
-                        init.potential().len(),
-                        a.len()
-                    ),
-                });
-            }
-            // Take the free values of the initial solution, and this model's fixed values.
-            let x = newton::restrict(&layout, init.potential());
-            newton::expand(&layout, &x, &mut a);
-        } else {
-            newton::expand(&layout, &vec![0.0; layout.neq], &mut a);
+            state: None,
         }
+        .load()?;
+        let load_time = t0.elapsed().as_secs_f64();
+        let mut a = self.start_potential(&layout, initial)?;
         let mut factor = Factor::new(&self.symbolic)?;
-        let mut state = QuadratureState::default();
-        let linear = model.is_linear();
+        let mut state = state.clone();
         let mut out = Vec::with_capacity(scales.len());
         let mut scaled = vec![0.0; load.len()];
         for &s in scales {
             for (y, l) in scaled.iter_mut().zip(&load) {
                 *y = s * l;
             }
-            match newton::run(&asm, &mut factor, &scaled, &mut a, settings, linear) {
-                Ok(mut report) => {
-                    report.times.assembly_s += load_time;
-                    state.commit();
-                    out.push(Solution::new(
-                        model.clone(),
-                        layout.clone(),
-                        a.clone(),
-                        rule,
-                        report,
-                        s,
-                        state.clone(),
-                    ));
-                }
-                Err(RunError::Failed(f)) => {
-                    state.discard();
-                    return Err(FemError::NewtonFailed(f));
-                }
-                Err(RunError::Pivot(eq, f)) => {
-                    state.discard();
-                    return Err(pivot_error(&model, &layout, eq).unwrap_or_else(|| {
-                        let mut f = f;
-                        f.reason = NewtonFailureReason::Factorisation("non-positive pivot".into());
-                        FemError::NewtonFailed(f)
-                    }));
-                }
-            }
+            let mut solution = self.step(
+                &model,
+                &layout,
+                &mut factor,
+                &scaled,
+                &mut a,
+                &state,
+                settings,
+                s,
+            )?;
+            solution.add_assembly_time(load_time);
+            state = solution.magnet_state().clone();
+            out.push(solution);
         }
         Ok(out)
+    }
+
+    /// The starting potential: `initial`'s free values with this layout's fixed values, or
+    /// zero on the free nodes.
+    pub(crate) fn start_potential(
+        &self,
+        layout: &Layout,
+        initial: Option<&[f64]>,
+    ) -> Result<Vec<f64>, FemError> {
+        let mut a = vec![0.0; layout.ndofs()];
+        if let Some(init) = initial {
+            if init.len() != a.len() {
+                return Err(FemError::IncompatibleModel {
+                    reason: format!(
+                        "initial solution has {} nodes, the model {}",
+                        init.len(),
+                        a.len()
+                    ),
+                });
+            }
+            // Take the free values of the initial solution, and this model's fixed values.
+            let x = newton::restrict(layout, init);
+            newton::expand(layout, &x, &mut a);
+        } else {
+            newton::expand(layout, &vec![0.0; layout.neq], &mut a);
+        }
+        Ok(a)
+    }
+
+    /// One load step: Newton from `a` (overwritten with the converged potential) with the
+    /// hysteretic points in the committed `state`, for the free-equation `load`.
+    #[allow(clippy::too_many_arguments)]
+    pub(crate) fn step(
+        &self,
+        model: &Arc<Model>,
+        layout: &Arc<Layout>,
+        factor: &mut Factor,
+        load: &[f64],
+        a: &mut [f64],
+        state: &MagnetState,
+        settings: &NewtonSettings,
+        scale: f64,
+    ) -> Result<Solution, FemError> {
+        let rule = stiffness_rule(model.formulation(), model.order());
+        let asm = Assembler {
+            model,
+            layout,
+            pattern: &self.pattern,
+            rule,
+            state: (!state.is_empty()).then_some(state),
+        };
+        match newton::run(&asm, factor, load, a, settings, model.is_linear()) {
+            Ok(report) => Ok(Solution::new(
+                model.clone(),
+                layout.clone(),
+                a.to_vec(),
+                rule,
+                report,
+                scale,
+                state,
+            )),
+            Err(RunError::Failed(f)) => Err(FemError::NewtonFailed(f)),
+            Err(RunError::Pivot(eq, f)) => {
+                Err(pivot_error(model, layout, eq).unwrap_or_else(|| {
+                    let mut f = f;
+                    f.reason = NewtonFailureReason::Factorisation("non-positive pivot".into());
+                    FemError::NewtonFailed(f)
+                }))
+            }
+        }
+    }
+
+    /// The layout and a fresh numeric factorisation workspace for `model`.
+    pub(crate) fn prepare(&self, model: &Model) -> Result<(Arc<Layout>, Factor), FemError> {
+        Ok((self.layout_for(model)?, Factor::new(&self.symbolic)?))
+    }
+
+    /// The sparsity pattern (for assemblers built outside this module).
+    pub(crate) fn pattern(&self) -> &Pattern {
+        &self.pattern
     }
 }
 
