@@ -94,6 +94,7 @@ fn model(mesh: &Arc<Mesh>) -> Model {
         .material(
             "magnet",
             Material::Magnet(LinearMagnet {
+                knee_field: None,
                 remanence: 1.2,
                 recoil_permeability: 1.05,
                 perpendicular_permeability: 1.05,

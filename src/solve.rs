@@ -297,6 +297,7 @@ fn material(e: &Entry<'_>, to_m: f64) -> Result<(String, Material), SetupError> 
         kinds.push("remanence");
         let r = recoil.ok_or_else(|| e.err("a magnet needs `recoil_permeability`"))?;
         Material::Magnet(LinearMagnet {
+            knee_field: None,
             remanence: br,
             recoil_permeability: r,
             perpendicular_permeability: perpendicular.unwrap_or(r),

@@ -42,6 +42,7 @@ fn build(mesh: coercive::mesh::Mesh) -> Result<Model, coercive::fem::FemError> {
         .material(
             "magnet",
             Material::Magnet(LinearMagnet {
+                knee_field: None,
                 remanence: 1.2,
                 recoil_permeability: 1.05,
                 perpendicular_permeability: 1.05,

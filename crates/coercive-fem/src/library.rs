@@ -94,6 +94,7 @@ impl MagnetGrade {
             }
         }
         let m = Material::Magnet(LinearMagnet {
+            knee_field: None,
             remanence: self.remanence,
             recoil_permeability: self.recoil_permeability,
             perpendicular_permeability: self.perpendicular_permeability,

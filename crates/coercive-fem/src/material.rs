@@ -69,6 +69,12 @@ pub struct LinearMagnet {
     pub perpendicular_permeability: f64,
     /// Layout of the easy axis.
     pub direction: MagnetDirection,
+    /// The grade's knee field Hk (A/m, positive): the reverse field along the easy axis at
+    /// which the real magnet's polarisation has fallen to 90 % of its remanence. The linear
+    /// law is valid only for H along the axis above -Hk; results report the volume driven
+    /// beyond it. `None` when unknown.
+    #[serde(default)]
+    pub knee_field: Option<f64>,
 }
 
 /// The magnetisation a hysteretic magnet starts from when no [`MagnetState`](crate::MagnetState)
@@ -385,6 +391,34 @@ impl MagnetDirection {
     }
 }
 
+/// The field Hk (A/m, positive) where the polarisation on the descending major branch (from
+/// positive saturation, irreversible and reversible parts) falls to 90 % of its value at
+/// H = 0, by bisection.
+fn knee_of(law: &HysteresisLaw) -> Option<f64> {
+    let saturated = History::saturated(true);
+    let j = |h: f64| law.polarisation(&saturated, h).0;
+    let target = 0.9 * j(0.0);
+    if target.is_nan() || target <= 0.0 {
+        return None;
+    }
+    let mut hi = law.coercive_field.abs().max(law.width.abs()) * 2.0 + 1.0;
+    let mut guard = 0;
+    while j(-hi) > target && guard < 60 {
+        hi *= 2.0;
+        guard += 1;
+    }
+    let mut lo = 0.0;
+    for _ in 0..100 {
+        let mid = 0.5 * (lo + hi);
+        if j(-mid) > target {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    Some(0.5 * (lo + hi))
+}
+
 /// Response of the orthotropic linear law H = nu_par (B.e - b_shift) e + nu_perp (B.e_perp)
 /// e_perp, with e_perp = e rotated by +90 degrees.
 fn orthotropic(b: [f64; 2], e: [f64; 2], nu_par: f64, nu_perp: f64, b_shift: f64) -> Response {
@@ -609,6 +643,28 @@ impl Material {
                 let r = self.response(b, easy_axis);
                 b[0] * r.h[0] + b[1] * r.h[1] - self.energy_density(b, easy_axis)
             }
+        }
+    }
+
+    /// The knee field Hk (A/m, positive) of a magnet: the reverse field along the easy axis
+    /// at which the polarisation of the major loop has fallen to 90 % of its remanence (the
+    /// usual squareness measure of magnet grades). For a linear magnet this is the value it
+    /// carries (the limit of its validity); for a hysteretic magnet it is computed from its
+    /// loop. `None` for other materials or a linear magnet without one.
+    pub fn knee_field(&self) -> Option<f64> {
+        match self {
+            Material::Magnet(m) => m.knee_field,
+            Material::Hysteretic(m) => knee_of(&m.law),
+            _ => None,
+        }
+    }
+
+    /// The easy-axis layout of a magnet (`None` for other materials).
+    pub fn magnet_direction(&self) -> Option<&MagnetDirection> {
+        match self {
+            Material::Magnet(m) => Some(&m.direction),
+            Material::Hysteretic(m) => Some(&m.direction),
+            _ => None,
         }
     }
 

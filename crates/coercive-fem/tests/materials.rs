@@ -37,6 +37,7 @@ fn m19() -> Material {
 
 fn magnet(angle: f64) -> (Material, [f64; 2]) {
     let m = Material::Magnet(LinearMagnet {
+        knee_field: None,
         remanence: 1.2,
         recoil_permeability: 1.05,
         perpendicular_permeability: 1.2,
@@ -367,12 +368,14 @@ fn material_validation_rejects_bad_values() {
             angle: f64::INFINITY,
         },
         Material::Magnet(LinearMagnet {
+            knee_field: None,
             remanence: f64::NAN,
             recoil_permeability: 1.05,
             perpendicular_permeability: 1.05,
             direction: MagnetDirection::Fixed { angle: 0.0 },
         }),
         Material::Magnet(LinearMagnet {
+            knee_field: None,
             remanence: 1.0,
             recoil_permeability: 1.05,
             perpendicular_permeability: 1.05,

@@ -107,6 +107,7 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         .material(
             "magnet",
             Material::Magnet(LinearMagnet {
+                knee_field: None,
                 remanence: 1.2,
                 recoil_permeability: 1.05,
                 perpendicular_permeability: 1.05,

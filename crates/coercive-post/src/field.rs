@@ -52,11 +52,33 @@ pub struct FieldProbe<'a> {
 }
 
 fn easy_axis(solution: &Solution, region: RegionId, point: [f64; 2]) -> [f64; 2] {
-    match solution.model().material(region) {
-        Material::Magnet(m) => m
-            .direction
-            .easy_axis_at(point, solution.model().region_centroids()[region.index()]),
-        _ => [1.0, 0.0],
+    match solution.model().material(region).magnet_direction() {
+        Some(d) => d.easy_axis_at(point, solution.model().region_centroids()[region.index()]),
+        None => [1.0, 0.0],
+    }
+}
+
+/// Remanence (T) and the field where B vanishes on the recoil line or major loop (A/m) of a
+/// magnet material.
+fn magnet_nominals(material: &Material) -> Option<(f64, f64)> {
+    match material {
+        Material::Magnet(m) => Some((m.remanence, m.model_coercivity())),
+        Material::Hysteretic(m) => {
+            let saturated = coercive_fem::History::saturated(true);
+            let br = m.law.flux_density(&saturated, 0.0).0;
+            // HcB: B = 0 on the descending branch, by bisection (B increases with H).
+            let (mut lo, mut hi) = (-br / MU_0 - 1.0, 0.0);
+            for _ in 0..200 {
+                let mid = 0.5 * (lo + hi);
+                if m.law.flux_density(&saturated, mid).0 > 0.0 {
+                    hi = mid;
+                } else {
+                    lo = mid;
+                }
+            }
+            Some((br, -0.5 * (lo + hi)))
+        }
+        _ => None,
     }
 }
 
@@ -387,6 +409,7 @@ impl<'a> FieldProbe<'a> {
         let rule = s.quadrature_rule();
         // Per-chunk accumulators merged in chunk order: identical for any thread count.
         let n = mesh.triangles().len();
+        let knees: Vec<Option<f64>> = model.materials().iter().map(|m| m.knee_field()).collect();
         let per_region: Vec<Option<WorkingAcc>> = {
             let chunks: Vec<Vec<Option<WorkingAcc>>> = (0..n.div_ceil(4096))
                 .into_par_iter()
@@ -394,9 +417,10 @@ impl<'a> FieldProbe<'a> {
                     let mut acc: Vec<Option<WorkingAcc>> = vec![None; mesh.regions().len()];
                     for t in c * 4096..((c + 1) * 4096).min(n) {
                         let region = mesh.triangle_regions()[t];
-                        let Material::Magnet(_) = model.material(region) else {
+                        if model.material(region).magnet_direction().is_none() {
                             continue;
-                        };
+                        }
+                        let knee = knees[region.index()];
                         let tri = triangle(mesh, t);
                         let bq = s.flux_density_at_quadrature(TriangleId(t as u32));
                         let hq = s.field_strength_at_quadrature(TriangleId(t as u32));
@@ -406,9 +430,10 @@ impl<'a> FieldProbe<'a> {
                             let e = easy_axis(s, region, p);
                             let be = bq[q][0] * e[0] + bq[q][1] * e[1];
                             let he = hq[q][0] * e[0] + hq[q][1] * e[1];
+                            let beyond = knee.is_some_and(|k| he < -k);
                             acc[region.index()]
                                 .get_or_insert_with(WorkingAcc::new)
-                                .add(w, be, he, p);
+                                .add(w, be, he, p, beyond);
                         }
                     }
                     acc
@@ -432,15 +457,18 @@ impl<'a> FieldProbe<'a> {
             .enumerate()
             .filter_map(|(r, acc)| {
                 let acc = acc?;
-                let Material::Magnet(m) = model.material(RegionId(r as u32)) else {
-                    return None;
-                };
+                let material = model.material(RegionId(r as u32));
+                let (remanence, coercivity) = magnet_nominals(material)?;
                 let mean_b = acc.wb / acc.w;
                 let mean_h = acc.wh / acc.w;
                 Some(MagnetWorkingPoint {
                     region: mesh.regions()[r].name.clone(),
-                    remanence_t: m.remanence,
-                    model_coercivity_a_per_m: m.model_coercivity(),
+                    hysteretic: material.is_hysteretic(),
+                    remanence_t: remanence,
+                    model_coercivity_a_per_m: coercivity,
+                    mean_polarisation_t: mean_b - MU_0 * mean_h,
+                    knee_field_a_per_m: knees[r],
+                    beyond_knee_fraction: acc.w_beyond / acc.w,
                     mean_flux_density_t: mean_b,
                     min_flux_density_t: acc.min_b,
                     max_flux_density_t: acc.max_b,
@@ -466,6 +494,7 @@ struct WorkingAcc {
     min_h: f64,
     max_h: f64,
     min_b_point: [f64; 2],
+    w_beyond: f64,
 }
 
 impl WorkingAcc {
@@ -479,10 +508,14 @@ impl WorkingAcc {
             min_h: f64::INFINITY,
             max_h: f64::NEG_INFINITY,
             min_b_point: [f64::NAN; 2],
+            w_beyond: 0.0,
         }
     }
-    fn add(&mut self, w: f64, be: f64, he: f64, p: [f64; 2]) {
+    fn add(&mut self, w: f64, be: f64, he: f64, p: [f64; 2], beyond_knee: bool) {
         self.w += w;
+        if beyond_knee {
+            self.w_beyond += w;
+        }
         self.wb += w * be;
         self.wh += w * he;
         if be < self.min_b {
@@ -495,6 +528,7 @@ impl WorkingAcc {
     }
     fn merge(&mut self, o: &WorkingAcc) {
         self.w += o.w;
+        self.w_beyond += o.w_beyond;
         self.wb += o.wb;
         self.wh += o.wh;
         if o.min_b < self.min_b {
@@ -761,10 +795,22 @@ impl Tabular for RegionAverageTable {
 pub struct MagnetWorkingPoint {
     /// The magnet region.
     pub region: String,
-    /// Remanence Br of its material (T).
+    /// True for a hysteretic magnet (its state is part of the solution), false for a linear
+    /// recoil magnet (valid only above its knee).
+    pub hysteretic: bool,
+    /// Remanence Br of its material (T): the linear law's, or the major loop's.
     pub remanence_t: f64,
-    /// Br / (mu_0 mu_rec), where the linear recoil line crosses B = 0 (A/m).
+    /// Where B vanishes: Br / (mu_0 mu_rec) on a linear recoil line, HcB of a hysteretic
+    /// magnet's major loop (A/m).
     pub model_coercivity_a_per_m: f64,
+    /// Mean polarisation J = B - mu_0 H along the easy axis (T).
+    pub mean_polarisation_t: f64,
+    /// The grade's knee field Hk (A/m, positive), if known.
+    pub knee_field_a_per_m: Option<f64>,
+    /// Volume fraction of the region where H along the easy axis is below -Hk (0 when the
+    /// knee is unknown). For a linear magnet this part is outside the model's validity (the
+    /// real magnet would lose remanence there); for a hysteretic magnet the loss is modelled.
+    pub beyond_knee_fraction: f64,
     /// Mean B along the easy axis (T).
     pub mean_flux_density_t: f64,
     /// Smallest B along the easy axis at a quadrature point (T): the most demagnetised spot.
@@ -806,6 +852,10 @@ impl Tabular for WorkingPointTable {
             "permeance coefficient (1)",
             "weakest x (m)",
             "weakest y (m)",
+            "mean J along axis (T)",
+            "knee field Hk (A/m)",
+            "volume beyond knee (%)",
+            "hysteretic",
         ]
         .iter()
         .map(|s| s.to_string())
@@ -829,6 +879,10 @@ impl Tabular for WorkingPointTable {
                         r.permeance_coefficient,
                         r.weakest_point[0],
                         r.weakest_point[1],
+                        r.mean_polarisation_t,
+                        r.knee_field_a_per_m.unwrap_or(f64::NAN),
+                        100.0 * r.beyond_knee_fraction,
+                        if r.hysteretic { 1.0 } else { 0.0 },
                     ],
                     0,
                 )

@@ -37,6 +37,7 @@ fn device(remanence: f64) -> Model {
         .material(
             "magnet",
             Material::Magnet(LinearMagnet {
+                knee_field: None,
                 remanence,
                 recoil_permeability: 1.05,
                 perpendicular_permeability: 1.05,

@@ -41,6 +41,7 @@ fn device() -> Model {
         .material(
             "magnet",
             Material::Magnet(LinearMagnet {
+                knee_field: None,
                 remanence: 1.2,
                 recoil_permeability: 1.05,
                 perpendicular_permeability: 1.05,
@@ -292,6 +293,7 @@ fn magnet_block(fixed: &[&str]) -> Model {
         .material(
             "magnet",
             Material::Magnet(LinearMagnet {
+                knee_field: None,
                 remanence: 1.25,
                 recoil_permeability: 1.05,
                 perpendicular_permeability: 1.1,

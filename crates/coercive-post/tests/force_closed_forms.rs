@@ -255,6 +255,7 @@ fn round_magnet_in_a_uniform_field_feels_the_dipole_torque() {
     // parallel to m', which adds no torque.
     let (br, b0, a) = (1.2, 0.1, 0.01);
     let magnet = Material::Magnet(LinearMagnet {
+        knee_field: None,
         remanence: br,
         recoil_permeability: 1.0,
         perpendicular_permeability: 1.0,
@@ -638,6 +639,7 @@ fn a_body_touching_another_material_is_refused_naming_both() {
         .material(
             "magnet",
             Material::Magnet(LinearMagnet {
+                knee_field: None,
                 remanence: 1.2,
                 recoil_permeability: 1.05,
                 perpendicular_permeability: 1.05,

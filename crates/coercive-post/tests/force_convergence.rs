@@ -48,6 +48,7 @@ fn solve(mesh: coercive_mesh::Mesh) -> Solution {
         .material(
             "magnet",
             Material::Magnet(LinearMagnet {
+                knee_field: None,
                 remanence: 1.2,
                 recoil_permeability: 1.05,
                 perpendicular_permeability: 1.05,

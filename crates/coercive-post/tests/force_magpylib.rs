@@ -81,6 +81,7 @@ fn two_bar_magnets_side_by_side_repel_as_magpylib_says() {
     // Recoil permeability 1: the magnets are exactly the uniform magnetisation magpylib
     // models.
     let magnet = Material::Magnet(LinearMagnet {
+        knee_field: None,
         remanence: br,
         recoil_permeability: 1.0,
         perpendicular_permeability: 1.0,

@@ -385,7 +385,11 @@ fn working_point_chart_shows_recoil_and_load_lines() {
     let b = -2.0 * coercive_fem::MU_0 * h;
     let p = MagnetWorkingPoint {
         region: "magnet & pole".into(),
+        hysteretic: false,
         remanence_t: 1.30,
+        mean_polarisation_t: b - coercive_fem::MU_0 * h,
+        knee_field_a_per_m: None,
+        beyond_knee_fraction: 0.0,
         model_coercivity_a_per_m: hc,
         mean_flux_density_t: b,
         min_flux_density_t: b - 0.1,
