@@ -7,3 +7,4 @@ pub use coercive_post as post;
 pub mod case;
 pub mod solve;
 pub mod study;
+pub mod switching;

@@ -5,7 +5,7 @@
 //! air around it ([`coercive_mesh::RigidMesher`]), so force curves carry no re-meshing noise
 //! from the moving parts and per-triangle states stay valid.
 
-use coercive_fem::{FemError, Model};
+use coercive_fem::{FemError, MagnetState, Model, NewtonSettings, Solver};
 use coercive_mesh::{Mesh, MeshError, Placement, RigidMesher};
 use coercive_post::force::{coenergy_force, force_on, Body, ForceMethod, ForceSettings};
 use coercive_post::PostError;
@@ -139,6 +139,40 @@ pub fn force_sweep<B>(
 where
     B: Fn(Mesh) -> Result<Model, FemError> + Sync,
 {
+    sweep(rigid, points, settings, None, build)
+}
+
+/// [`force_sweep`] with the hysteretic magnets in the committed `state` at every point (e.g.
+/// the state a switching pulse left). The moving part keeps its triangles at every position,
+/// so one state fits every point; each solve starts from it and none changes it (a small
+/// virtual displacement moves the magnets along their recoil branches).
+///
+/// # Errors
+/// As [`force_sweep`]; a state that does not fit a point's model is that point's
+/// [`StudyError::Solve`].
+pub fn force_sweep_with_state<B>(
+    rigid: &RigidMesher,
+    points: &[TranslationPoint],
+    settings: &ForceSweepSettings,
+    state: &MagnetState,
+    build: B,
+) -> Result<Vec<ForcePoint>, StudyError>
+where
+    B: Fn(Mesh) -> Result<Model, FemError> + Sync,
+{
+    sweep(rigid, points, settings, Some(state), build)
+}
+
+fn sweep<B>(
+    rigid: &RigidMesher,
+    points: &[TranslationPoint],
+    settings: &ForceSweepSettings,
+    state: Option<&MagnetState>,
+    build: B,
+) -> Result<Vec<ForcePoint>, StudyError>
+where
+    B: Fn(Mesh) -> Result<Model, FemError> + Sync,
+{
     let d = settings.direction;
     let norm = d[0].hypot(d[1]);
     if !(norm.is_finite() && (norm - 1.0).abs() < 1e-9) {
@@ -156,7 +190,7 @@ where
     points
         .par_iter()
         .enumerate()
-        .map(|(index, point)| sweep_point(rigid, index, point, settings, &build))
+        .map(|(index, point)| sweep_point(rigid, index, point, settings, state, &build))
         .collect()
 }
 
@@ -165,6 +199,7 @@ fn sweep_point<B>(
     index: usize,
     point: &TranslationPoint,
     settings: &ForceSweepSettings,
+    state: Option<&MagnetState>,
     build: &B,
 ) -> Result<ForcePoint, StudyError>
 where
@@ -189,7 +224,15 @@ where
                 source,
             })?;
         build(mesh)
-            .and_then(|m| m.solve())
+            .and_then(|m| match state {
+                Some(state) => Solver::new(&m)?.solve_with_state(
+                    &m,
+                    state,
+                    None,
+                    &NewtonSettings::default(),
+                ),
+                None => m.solve(),
+            })
             .map_err(|source| StudyError::Solve {
                 index,
                 label: label(),
