@@ -21,7 +21,6 @@ use std::path::PathBuf;
 use std::time::Instant;
 
 use coercive::case::Case;
-use coercive::fem::{library, Formulation, MagnetDirection, Material, Model};
 use coercive::post::force::{Body, ForceSettings};
 use coercive::post::plot::{
     field_map_svg, xy_chart_svg, ChartOptions, FieldMapOptions, Series, Table,
@@ -50,29 +49,10 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     let geometry = case.geometry()?;
     let started = Instant::now();
     let rigid = geometry.prepare_rigid()?;
-    // Materials by region from the case file's names (library presets); both magnets along
-    // +x (pole to pole, the ON state).
-    let mut materials: Vec<(String, Material)> = Vec::new();
-    for region in case.region_names() {
-        let name = case.region_material(region).unwrap_or("air");
-        let grade = library::grade(name)?;
-        let material = match grade {
-            library::Grade::Magnet(m) => m
-                .with_direction(MagnetDirection::Fixed { angle: 0.0 })
-                .to_material()?,
-            other => other.to_material()?,
-        };
-        materials.push((region.to_string(), material));
-    }
-    let build = |mesh| {
-        let mut b = Model::builder(mesh, Formulation::Planar { depth_m })
-            .order(coercive::fem::ElementOrder::P2)
-            .fixed_potential("outer", 0.0);
-        for (region, m) in &materials {
-            b = b.material(region, m.clone());
-        }
-        b.build()
-    };
+    // Materials, element order, depth and boundaries from the case file's sections, through
+    // the same code as `coercive solve` (both magnets along +x, the ON state, as its
+    // `[[material]]` entries say).
+    let build = |mesh| coercive::solve::study_model(&case, mesh);
     let points: Vec<TranslationPoint> = GAPS_MM
         .iter()
         .map(|&g| TranslationPoint {

@@ -8,7 +8,7 @@ use coercive::fem::{library, ElementOrder, Formulation, Material, Model};
 use coercive::mesh::{Geometry, Point2};
 use coercive::post::FieldProbe;
 
-fn main() -> Result<(), Box<dyn std::error::Error>> {
+pub fn main() -> Result<(), Box<dyn std::error::Error>> {
     // README-BEGIN
     // Conductor r < 8 mm, air gap, steel ring 10..20 mm, air out to 60 mm (lengths in m).
     let mut geometry = Geometry::new();

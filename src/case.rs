@@ -12,6 +12,10 @@ use std::collections::BTreeMap;
 use std::fmt;
 use std::path::{Path, PathBuf};
 
+use coercive_fem::{
+    library, BhCurve, LinearMagnet, MagnetDirection, Material, MaterialError, OpenBoundary, Sense,
+    SoftMagnetic, Winding,
+};
 use coercive_mesh::{
     CurveId, CurveShape, Geometry, GeometryPoint, GeometryRegion, Mesh, MeshError, MeshSettings,
     Point2, PointId, QualityReport, RigidGroup,
@@ -95,6 +99,21 @@ pub enum CaseError {
         /// The name.
         name: String,
         /// Where the second definition is.
+        position: Position,
+    },
+    /// Something is wrong inside a `[[material]]`, `[[winding]]` or `[[boundary]]` entry (an
+    /// unknown key, two material laws, an unknown preset, region or curve, a bad value).
+    #[error("[[{section}]] entry {index}{}: {what} ({position})", name.as_ref().map(|n| format!(" `{n}`")).unwrap_or_default())]
+    Entry {
+        /// `material`, `winding` or `boundary`.
+        section: &'static str,
+        /// Position of the entry among the section's entries, counted from 1.
+        index: usize,
+        /// The entry's name (a boundary's kind), when known.
+        name: Option<String>,
+        /// What is wrong.
+        what: String,
+        /// Where.
         position: Position,
     },
     /// A value is out of range or inconsistent (a non-finite coordinate, a negative size, an
@@ -222,14 +241,13 @@ struct RawCase {
     geometry: RawGeometry,
     #[serde(default)]
     regions: BTreeMap<Spanned<String>, RawRegion>,
-    // Sections for the solver and post-processing. Their contents are read by the code that
-    // uses them (from `Case::source` with positions); here they are only kept.
+    // Sections for the solver.
     #[serde(default)]
-    material: Vec<Spanned<toml::Table>>,
+    material: Vec<Spanned<RawMaterial>>,
     #[serde(default)]
-    winding: Vec<Spanned<toml::Table>>,
+    winding: Vec<Spanned<RawWinding>>,
     #[serde(default)]
-    boundary: Vec<Spanned<toml::Table>>,
+    boundary: Vec<Spanned<RawBoundary>>,
     #[serde(default)]
     sweep: Option<Spanned<RawSweep>>,
 }
@@ -395,6 +413,265 @@ struct RawRegion {
 }
 
 // ---------------------------------------------------------------------------------------------
+// Solver sections: `[[material]]`, `[[winding]]`, `[[boundary]]`. Read with the rest of the
+// case (one reader, positions kept) and checked against the geometry's names.
+
+/// `[[material]]`: a name, exactly one law, and the modifiers that apply to that law.
+///
+/// A new law is one more optional field here and one more [`RawLaw`] variant (see
+/// [`RawMaterial::laws`]).
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawMaterial {
+    name: Spanned<String>,
+    // The laws (exactly one).
+    #[serde(default)]
+    preset: Option<Spanned<String>>,
+    #[serde(default)]
+    relative_permeability: Option<Spanned<f64>>,
+    #[serde(default)]
+    anisotropic: Option<Spanned<RawAnisotropic>>,
+    #[serde(default)]
+    bh: Option<Spanned<Vec<Spanned<[f64; 2]>>>>,
+    #[serde(default)]
+    saturating: Option<Spanned<RawSaturating>>,
+    #[serde(default)]
+    brauer: Option<Spanned<RawBrauer>>,
+    #[serde(default)]
+    remanence: Option<Spanned<f64>>,
+    // Modifiers.
+    #[serde(default)]
+    stacking_factor: Option<Spanned<f64>>,
+    #[serde(default)]
+    recoil_permeability: Option<Spanned<f64>>,
+    #[serde(default)]
+    perpendicular_permeability: Option<Spanned<f64>>,
+    #[serde(default)]
+    direction_deg: Option<Spanned<f64>>,
+    #[serde(default)]
+    radial_centre: Option<Spanned<[f64; 2]>>,
+    #[serde(default)]
+    parallel_centre: Option<Spanned<[f64; 2]>>,
+    #[serde(default)]
+    outward: Option<Spanned<bool>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawAnisotropic {
+    parallel: f64,
+    perpendicular: f64,
+    #[serde(default)]
+    angle_deg: f64,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawSaturating {
+    js: f64,
+    h0: f64,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawBrauer {
+    k1: f64,
+    k2: f64,
+    k3: f64,
+    #[serde(default)]
+    exact: bool,
+}
+
+/// The law of a `[[material]]` entry, as written.
+enum RawLaw<'a> {
+    Preset(&'a Spanned<String>),
+    Linear(&'a Spanned<f64>),
+    Anisotropic(&'a Spanned<RawAnisotropic>),
+    Table(&'a Spanned<Vec<Spanned<[f64; 2]>>>),
+    Saturating(&'a Spanned<RawSaturating>),
+    Brauer(&'a Spanned<RawBrauer>),
+    Magnet(&'a Spanned<f64>),
+}
+
+impl RawMaterial {
+    /// The laws given, with their key and the byte offset of their value, in key order.
+    /// `remanence` next to a `preset` is an override of the preset (checked later), not a law.
+    fn laws(&self) -> Vec<(&'static str, usize, RawLaw<'_>)> {
+        let mut laws = Vec::new();
+        if let Some(v) = &self.preset {
+            laws.push(("preset", v.span().start, RawLaw::Preset(v)));
+        }
+        if let Some(v) = &self.relative_permeability {
+            laws.push(("relative_permeability", v.span().start, RawLaw::Linear(v)));
+        }
+        if let Some(v) = &self.anisotropic {
+            laws.push(("anisotropic", v.span().start, RawLaw::Anisotropic(v)));
+        }
+        if let Some(v) = &self.bh {
+            laws.push(("bh", v.span().start, RawLaw::Table(v)));
+        }
+        if let Some(v) = &self.saturating {
+            laws.push(("saturating", v.span().start, RawLaw::Saturating(v)));
+        }
+        if let Some(v) = &self.brauer {
+            laws.push(("brauer", v.span().start, RawLaw::Brauer(v)));
+        }
+        if let (Some(v), None) = (&self.remanence, &self.preset) {
+            laws.push(("remanence", v.span().start, RawLaw::Magnet(v)));
+        }
+        laws.sort_by_key(|l| l.1);
+        laws
+    }
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawWinding {
+    name: Spanned<String>,
+    turns: Spanned<f64>,
+    current: Spanned<f64>,
+    #[serde(default)]
+    positive: Vec<Spanned<String>>,
+    #[serde(default)]
+    negative: Vec<Spanned<String>>,
+}
+
+/// `[[boundary]]`: `kind` selects which of the other keys apply (checked after reading, so
+/// that every key keeps its position).
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawBoundary {
+    kind: Spanned<String>,
+    #[serde(default)]
+    curve: Option<Spanned<String>>,
+    #[serde(default)]
+    value: Option<Spanned<f64>>,
+    #[serde(default)]
+    first: Option<Spanned<String>>,
+    #[serde(default)]
+    second: Option<Spanned<String>>,
+    #[serde(default)]
+    circle: Option<Spanned<String>>,
+    #[serde(default)]
+    exterior_boundary: Option<Spanned<String>>,
+    #[serde(default)]
+    exterior_region: Option<Spanned<String>>,
+    #[serde(default)]
+    exterior_centre: Option<Spanned<[f64; 2]>>,
+}
+
+/// One `[[material]]` entry: a named material law, ready for the solver (SI units).
+#[derive(Clone, Debug, PartialEq)]
+pub struct CaseMaterial {
+    /// The entry's name (what regions write in `material = "..."`).
+    pub name: String,
+    /// The material law, built and validated when the file was read.
+    pub material: Material,
+    /// Where the entry's name is written in the file.
+    pub position: Position,
+}
+
+/// One `[[boundary]]` entry (curve names as in the geometry, lengths in metres).
+#[derive(Clone, Debug, PartialEq)]
+#[non_exhaustive]
+pub enum CaseBoundary {
+    /// `kind = "fixed"`: the potential on `curve` is `value` (Wb/m).
+    FixedPotential {
+        /// The curve name.
+        curve: String,
+        /// The potential (Wb/m); 0 makes the curve a flux line.
+        value: f64,
+    },
+    /// `kind = "periodic"`: the potential on `second` equals that on `first`.
+    Periodic {
+        /// The first curve of the curve pair.
+        first: String,
+        /// The second curve of the curve pair.
+        second: String,
+    },
+    /// `kind = "anti_periodic"`: the potential on `second` is minus that on `first`.
+    AntiPeriodic {
+        /// The first curve of the curve pair.
+        first: String,
+        /// The second curve of the curve pair.
+        second: String,
+    },
+    /// `kind = "open"`: an open boundary by Kelvin transformation.
+    Open(OpenBoundary),
+}
+
+/// The checked solver sections: materials, windings, boundaries.
+type SolverSections = (Vec<CaseMaterial>, Vec<Winding>, Vec<CaseBoundary>);
+
+/// The section, 1-based index and name of the `[[material]]`, `[[winding]]` or
+/// `[[boundary]]` entry that contains byte `offset` of `source`, read from the table headers
+/// before it. `None` outside these sections (or for entries written inline).
+fn entry_at(source: &str, offset: usize) -> Option<(&'static str, usize, Option<String>)> {
+    let mut current: Option<(&'static str, usize, usize)> = None; // (section, index, line)
+    let mut counts = [0usize; 3];
+    const SECTIONS: [&str; 3] = ["material", "winding", "boundary"];
+    let mut line_start = 0;
+    let lines: Vec<&str> = source.split('\n').collect();
+    for (line_no, line) in lines.iter().enumerate() {
+        if line_start > offset {
+            break;
+        }
+        let t = line.trim();
+        if let Some(rest) = t.strip_prefix("[[") {
+            let header = rest.split("]]").next().unwrap_or("").trim();
+            current = SECTIONS.iter().position(|s| *s == header).map(|k| {
+                counts[k] += 1;
+                (SECTIONS[k], counts[k], line_no)
+            });
+        } else if t.starts_with('[') {
+            current = None;
+        }
+        line_start += line.len() + 1;
+    }
+    let (section, index, header_line) = current?;
+    // The entry's `name = "..."`, between its header and the next header.
+    let name = lines[header_line + 1..]
+        .iter()
+        .take_while(|l| !l.trim().starts_with('['))
+        .find_map(|l| {
+            let (key, value) = l.split_once('=')?;
+            if key.trim() != "name" {
+                return None;
+            }
+            let v = value.trim();
+            let v = v.strip_prefix('"')?;
+            Some(v[..v.find('"')?].to_string())
+        });
+    Some((section, index, name))
+}
+
+/// The TOML reader's message in the case file's words (no Rust type names).
+fn plain_message(message: &str) -> String {
+    let mut m = message.trim().to_string();
+    for (from, to) in [
+        ("expected f64", "expected a number"),
+        ("expected i64", "expected an integer"),
+        ("expected u8", "expected an integer"),
+        ("expected usize", "expected an integer"),
+        ("expected a sequence", "expected an array"),
+        ("expected a map", "expected a table"),
+        ("expected a string", "expected a string in quotes"),
+        ("expected a borrowed string", "expected a string in quotes"),
+        ("floating point", "number"),
+    ] {
+        m = m.replace(from, to);
+    }
+    while let Some(i) = m.find("struct ") {
+        // `expected struct RawWinding` and similar: the case file only knows tables.
+        let end = m[i + 7..]
+            .find(|c: char| !c.is_alphanumeric() && c != '_')
+            .map_or(m.len(), |e| i + 7 + e);
+        m.replace_range(i..end, "a table");
+    }
+    m
+}
+
+// ---------------------------------------------------------------------------------------------
 
 /// One curve-producing item of `[geometry]`.
 enum CurveItem<'a> {
@@ -428,7 +705,9 @@ pub struct Case {
     geometry: Geometry,
     positions: Positions,
     region_materials: Vec<(String, Option<String>)>,
-    sections: BTreeMap<&'static str, Vec<toml::Table>>,
+    materials: Vec<CaseMaterial>,
+    windings: Vec<Winding>,
+    boundaries: Vec<CaseBoundary>,
     sweep: Option<CaseSweep>,
 }
 
@@ -442,9 +721,27 @@ impl Case {
     /// [`CaseError::InvalidValue`] for bad references and values. All carry the line and
     /// column.
     pub fn from_toml_str(source: &str) -> Result<Self, CaseError> {
-        let raw: RawCase = toml::from_str(source).map_err(|e| CaseError::Syntax {
-            message: e.message().trim().to_string(),
-            position: e.span().map(|s| Position::of_offset(source, s.start)),
+        let raw: RawCase = toml::from_str(source).map_err(|e| {
+            let message = plain_message(e.message());
+            match e.span() {
+                Some(span) => match entry_at(source, span.start) {
+                    Some((section, index, name)) => CaseError::Entry {
+                        section,
+                        index,
+                        name,
+                        what: message,
+                        position: Position::of_offset(source, span.start),
+                    },
+                    None => CaseError::Syntax {
+                        message,
+                        position: Some(Position::of_offset(source, span.start)),
+                    },
+                },
+                None => CaseError::Syntax {
+                    message,
+                    position: None,
+                },
+            }
         })?;
         Reader { source }.case(raw)
     }
@@ -522,11 +819,32 @@ impl Case {
             .and_then(|(_, m)| m.as_deref())
     }
 
-    /// The raw tables of a later section (`"material"`, `"winding"`, `"boundary"`), in file
-    /// order; empty when absent. The code that gives these sections meaning parses them
-    /// (from [`Case::source`] when it needs positions).
-    pub fn section(&self, name: &str) -> &[toml::Table] {
-        self.sections.get(name).map_or(&[], Vec::as_slice)
+    /// The `[[material]]` entries, in file order, each with its validated law.
+    pub fn materials(&self) -> &[CaseMaterial] {
+        &self.materials
+    }
+
+    /// The material law a region's `material = "..."` names: a `[[material]]` entry of that
+    /// name, else the library preset (magnets of presets point along +y).
+    ///
+    /// # Errors
+    /// [`MaterialError::UnknownPreset`] when the name is neither (the reader already refuses
+    /// such names in `[regions.NAME]` tables).
+    pub fn material(&self, name: &str) -> Result<Material, MaterialError> {
+        match self.materials.iter().find(|m| m.name == name) {
+            Some(m) => Ok(m.material.clone()),
+            None => library::preset(name),
+        }
+    }
+
+    /// The `[[winding]]` entries, in file order (regions checked against the geometry).
+    pub fn windings(&self) -> &[Winding] {
+        &self.windings
+    }
+
+    /// The `[[boundary]]` entries, in file order (curves checked against the geometry).
+    pub fn boundaries(&self) -> &[CaseBoundary] {
+        &self.boundaries
     }
 
     /// The `[sweep]` section, if any (checked when the file was read).
@@ -809,14 +1127,19 @@ impl Reader<'_> {
             Some(sw) => Some(self.sweep(unit, sw, &geometry)?),
         };
 
-        let mut sections = BTreeMap::new();
-        for (key, tables) in [
-            ("material", raw.material),
-            ("winding", raw.winding),
-            ("boundary", raw.boundary),
-        ] {
-            sections.insert(key, tables.into_iter().map(Spanned::into_inner).collect());
-        }
+        let spanned_materials: Vec<(&Spanned<String>, Option<&Spanned<String>>)> = regions
+            .iter()
+            .map(|(name, r)| (name, r.material.as_ref()))
+            .collect();
+        let (materials, windings, boundaries) = self.solver_sections(
+            unit,
+            axi,
+            &geometry,
+            &raw.material,
+            &raw.winding,
+            &raw.boundary,
+            &spanned_materials,
+        )?;
         Ok(Case {
             source: self.source.to_string(),
             path: None,
@@ -829,9 +1152,564 @@ impl Reader<'_> {
             geometry,
             positions,
             region_materials,
-            sections,
+            materials,
+            windings,
+            boundaries,
             sweep,
         })
+    }
+
+    /// An error inside a solver-section entry.
+    fn entry_error(
+        &self,
+        section: &'static str,
+        index: usize,
+        name: &str,
+        offset: usize,
+        what: String,
+    ) -> CaseError {
+        CaseError::Entry {
+            section,
+            index,
+            name: Some(name.to_string()),
+            what,
+            position: Position::of_offset(self.source, offset),
+        }
+    }
+
+    /// Reads one `[[material]]` entry (1-based `index`) into a validated material law.
+    fn material(
+        &self,
+        unit: LengthUnit,
+        axi: bool,
+        index: usize,
+        m: &RawMaterial,
+    ) -> Result<CaseMaterial, CaseError> {
+        let name = m.name.get_ref().as_str();
+        let fail =
+            |offset: usize, what: String| self.entry_error("material", index, name, offset, what);
+        let laws = m.laws();
+        let (law_key, law_offset, law) = match laws.len() {
+            0 => {
+                return Err(fail(
+                    m.name.span().start,
+                    "no material law: give one of `preset`, `relative_permeability`, \
+                     `anisotropic`, `bh`, `saturating`, `brauer` or `remanence`"
+                        .into(),
+                ))
+            }
+            1 => laws
+                .into_iter()
+                .next()
+                .ok_or_else(|| fail(0, String::new()))?,
+            _ => {
+                return Err(fail(
+                    laws[1].1,
+                    format!(
+                        "two material laws, `{}` and `{}`: give exactly one per entry",
+                        laws[0].0, laws[1].0
+                    ),
+                ))
+            }
+        };
+        // A material error from the solver crate, in the file's words (points count from 1).
+        let material_error = |offset: usize, e: MaterialError| {
+            let text = match &e {
+                MaterialError::NotFinite { index, .. }
+                | MaterialError::Negative { index, .. }
+                | MaterialError::OffOrigin { index, .. }
+                | MaterialError::NotMonotone { index, .. }
+                | MaterialError::FlatterThanVacuum { index, .. } => e.to_string().replacen(
+                    &format!("point {index} "),
+                    &format!("point {} ", index + 1),
+                    1,
+                ),
+                _ => e.to_string(),
+            };
+            fail(offset, text)
+        };
+        let grade = match &law {
+            RawLaw::Preset(p) => {
+                Some(library::grade(p.get_ref()).map_err(|e| material_error(p.span().start, e))?)
+            }
+            _ => None,
+        };
+        let is_magnet =
+            matches!(law, RawLaw::Magnet(_)) || matches!(grade, Some(library::Grade::Magnet(_)));
+        let brauer_exact = matches!(&law, RawLaw::Brauer(b) if b.get_ref().exact);
+        let is_curve = matches!(
+            law,
+            RawLaw::Table(_) | RawLaw::Saturating(_) | RawLaw::Brauer(_)
+        ) || matches!(grade, Some(library::Grade::Steel(_)));
+        let what_law = match &law {
+            RawLaw::Preset(p) => format!("preset `{}`", p.get_ref()),
+            _ => format!("`{law_key}`"),
+        };
+        // Modifiers that do not apply to this law are errors, never silently ignored.
+        if let Some(r) = &m.remanence {
+            if !is_magnet {
+                return Err(fail(
+                    r.span().start,
+                    format!(
+                        "two material laws, {what_law} and `remanence`: give exactly one per entry"
+                    ),
+                ));
+            }
+        }
+        let magnet_keys = [
+            (
+                "recoil_permeability",
+                m.recoil_permeability.as_ref().map(|v| v.span().start),
+            ),
+            (
+                "perpendicular_permeability",
+                m.perpendicular_permeability
+                    .as_ref()
+                    .map(|v| v.span().start),
+            ),
+            (
+                "direction_deg",
+                m.direction_deg.as_ref().map(|v| v.span().start),
+            ),
+            (
+                "radial_centre",
+                m.radial_centre.as_ref().map(|v| v.span().start),
+            ),
+            (
+                "parallel_centre",
+                m.parallel_centre.as_ref().map(|v| v.span().start),
+            ),
+            ("outward", m.outward.as_ref().map(|v| v.span().start)),
+        ];
+        if !is_magnet {
+            if let Some((key, Some(offset))) = magnet_keys.iter().find(|(_, o)| o.is_some()) {
+                return Err(fail(
+                    *offset,
+                    format!(
+                        "`{key}` applies to magnets (`remanence` or a magnet preset), not to \
+                         {what_law}"
+                    ),
+                ));
+            }
+        }
+        let stacking = match &m.stacking_factor {
+            None => None,
+            Some(k) if brauer_exact => {
+                return Err(fail(
+                    k.span().start,
+                    "`stacking_factor` needs a B-H table; it cannot be combined with \
+                     `brauer.exact = true`"
+                        .into(),
+                ))
+            }
+            Some(k) if !is_curve => {
+                return Err(fail(
+                    k.span().start,
+                    format!(
+                        "`stacking_factor` applies to B-H curves (a steel preset, `bh`, \
+                         `saturating` or `brauer`), not to {what_law}"
+                    ),
+                ))
+            }
+            Some(k) => Some(k),
+        };
+        let with_stacking = |c: BhCurve| match stacking {
+            Some(k) => c
+                .with_stacking_factor(*k.get_ref())
+                .map_err(|e| material_error(k.span().start, e)),
+            None => Ok(c),
+        };
+        // The easy axis: at most one of three keys.
+        let directions: Vec<(&str, usize)> = magnet_keys[2..5]
+            .iter()
+            .filter_map(|(k, o)| o.map(|o| (*k, o)))
+            .collect();
+        if directions.len() > 1 {
+            return Err(fail(
+                directions[1].1,
+                format!(
+                    "two magnet directions, `{}` and `{}`: give one",
+                    directions[0].0, directions[1].0
+                ),
+            ));
+        }
+        let outward = m.outward.as_ref().is_none_or(|o| *o.get_ref());
+        if let (Some(o), None, None) = (&m.outward, &m.radial_centre, &m.parallel_centre) {
+            return Err(fail(
+                o.span().start,
+                "`outward` goes with `radial_centre` or `parallel_centre`".into(),
+            ));
+        }
+        let centre = |c: &Spanned<[f64; 2]>, key: &str| -> Result<[f64; 2], CaseError> {
+            let p = self.coords(unit, *c.get_ref(), self.pos(c), key, axi)?;
+            Ok([p.x, p.y])
+        };
+        let direction = if let Some(a) = &m.direction_deg {
+            if !a.get_ref().is_finite() {
+                return Err(fail(
+                    a.span().start,
+                    "`direction_deg` must be finite".into(),
+                ));
+            }
+            Some(MagnetDirection::Fixed {
+                angle: a.get_ref().to_radians(),
+            })
+        } else if let Some(c) = &m.radial_centre {
+            Some(MagnetDirection::Radial {
+                centre: centre(c, "radial_centre")?,
+                outward,
+            })
+        } else if let Some(c) = &m.parallel_centre {
+            Some(MagnetDirection::Parallel {
+                centre: centre(c, "parallel_centre")?,
+                outward,
+            })
+        } else {
+            None
+        };
+        let recoil = m.recoil_permeability.as_ref().map(|v| *v.get_ref());
+        let perpendicular = m.perpendicular_permeability.as_ref().map(|v| *v.get_ref());
+        let material = match law {
+            RawLaw::Preset(p) => match grade {
+                Some(library::Grade::Magnet(mut g)) => {
+                    if let Some(b) = &m.remanence {
+                        g.remanence = *b.get_ref();
+                    }
+                    if let Some(r) = recoil {
+                        g.recoil_permeability = r;
+                        g.perpendicular_permeability = perpendicular.unwrap_or(r);
+                    } else if let Some(q) = perpendicular {
+                        g.perpendicular_permeability = q;
+                    }
+                    if let Some(d) = direction {
+                        g = g.with_direction(d);
+                    }
+                    g.to_material()
+                        .map_err(|e| material_error(p.span().start, e))?
+                }
+                Some(library::Grade::Steel(s)) => Material::Soft(SoftMagnetic {
+                    curve: with_stacking(
+                        s.curve().map_err(|e| material_error(p.span().start, e))?,
+                    )?,
+                }),
+                Some(g) => g
+                    .to_material()
+                    .map_err(|e| material_error(p.span().start, e))?,
+                None => return Err(fail(p.span().start, "unknown preset".into())),
+            },
+            RawLaw::Linear(mu) => Material::Linear {
+                relative_permeability: *mu.get_ref(),
+            },
+            RawLaw::Anisotropic(a) => Material::Anisotropic {
+                parallel: a.get_ref().parallel,
+                perpendicular: a.get_ref().perpendicular,
+                angle: a.get_ref().angle_deg.to_radians(),
+            },
+            RawLaw::Table(points) => {
+                let pts: Vec<(f64, f64)> = points
+                    .get_ref()
+                    .iter()
+                    .map(|p| (p.get_ref()[0], p.get_ref()[1]))
+                    .collect();
+                let curve = BhCurve::from_points(&pts).map_err(|e| {
+                    let at = match &e {
+                        MaterialError::NotFinite { index, .. }
+                        | MaterialError::Negative { index, .. }
+                        | MaterialError::OffOrigin { index, .. }
+                        | MaterialError::NotMonotone { index, .. }
+                        | MaterialError::FlatterThanVacuum { index, .. } => points
+                            .get_ref()
+                            .get(*index)
+                            .map_or(points.span().start, |p| p.span().start),
+                        _ => points.span().start,
+                    };
+                    material_error(at, e)
+                })?;
+                Material::Soft(SoftMagnetic {
+                    curve: with_stacking(curve)?,
+                })
+            }
+            RawLaw::Saturating(s) => Material::Soft(SoftMagnetic {
+                curve: with_stacking(
+                    BhCurve::saturating(s.get_ref().js, s.get_ref().h0)
+                        .map_err(|e| material_error(s.span().start, e))?,
+                )?,
+            }),
+            RawLaw::Brauer(b) => {
+                let RawBrauer { k1, k2, k3, exact } = *b.get_ref();
+                if exact {
+                    // The closed-form law at every flux density, without the vacuum-slope
+                    // continuation of the sampled curve.
+                    Material::Brauer { k1, k2, k3 }
+                } else {
+                    Material::Soft(SoftMagnetic {
+                        curve: with_stacking(
+                            BhCurve::brauer(k1, k2, k3)
+                                .map_err(|e| material_error(b.span().start, e))?,
+                        )?,
+                    })
+                }
+            }
+            RawLaw::Magnet(br) => {
+                let recoil = recoil.ok_or_else(|| {
+                    fail(
+                        br.span().start,
+                        "a magnet needs `recoil_permeability`".into(),
+                    )
+                })?;
+                Material::Magnet(LinearMagnet {
+                    knee_field: None,
+                    remanence: *br.get_ref(),
+                    recoil_permeability: recoil,
+                    perpendicular_permeability: perpendicular.unwrap_or(recoil),
+                    direction: direction.ok_or_else(|| {
+                        fail(
+                            br.span().start,
+                            "a magnet needs `direction_deg`, `radial_centre` or \
+                             `parallel_centre`"
+                                .into(),
+                        )
+                    })?,
+                })
+            }
+        };
+        material
+            .validate()
+            .map_err(|e| material_error(law_offset, e))?;
+        Ok(CaseMaterial {
+            name: name.to_string(),
+            material,
+            position: self.pos(&m.name),
+        })
+    }
+
+    /// Reads `[[material]]`, `[[winding]]` and `[[boundary]]` and checks every name they use
+    /// (regions, curves, materials) against the geometry.
+    #[allow(clippy::too_many_arguments)]
+    fn solver_sections(
+        &self,
+        unit: LengthUnit,
+        axi: bool,
+        geometry: &Geometry,
+        raw_materials: &[Spanned<RawMaterial>],
+        raw_windings: &[Spanned<RawWinding>],
+        raw_boundaries: &[Spanned<RawBoundary>],
+        region_materials: &[(&Spanned<String>, Option<&Spanned<String>>)],
+    ) -> Result<SolverSections, CaseError> {
+        let mut materials: Vec<CaseMaterial> = Vec::new();
+        for (i, m) in raw_materials.iter().enumerate() {
+            let m = m.get_ref();
+            if materials.iter().any(|x| &x.name == m.name.get_ref()) {
+                return Err(CaseError::DuplicateName {
+                    kind: "material",
+                    name: m.name.get_ref().clone(),
+                    position: self.pos(&m.name),
+                });
+            }
+            materials.push(self.material(unit, axi, i + 1, m)?);
+        }
+        // Every region's material names an entry or a preset.
+        for (region, material) in region_materials {
+            let Some(material) = material else { continue };
+            let name = material.get_ref();
+            if !materials.iter().any(|m| &m.name == name) && library::grade(name).is_err() {
+                return Err(self.invalid(
+                    material,
+                    format!(
+                        "region `{}`: unknown material `{name}` (not a [[material]] name; \
+                         presets: {})",
+                        region.get_ref(),
+                        library::names().join(", ")
+                    ),
+                ));
+            }
+        }
+        let region_exists = |r: &str| geometry.regions.iter().any(|g| g.name == r && !g.hole);
+        let curve_exists = |c: &str| geometry.curves.iter().any(|g| g.name.as_deref() == Some(c));
+        let mut windings: Vec<Winding> = Vec::new();
+        for (i, w) in raw_windings.iter().enumerate() {
+            let w = w.get_ref();
+            let name = w.name.get_ref();
+            let fail = |offset: usize, what: String| {
+                self.entry_error("winding", i + 1, name, offset, what)
+            };
+            if windings.iter().any(|x| &x.name == name) {
+                return Err(CaseError::DuplicateName {
+                    kind: "winding",
+                    name: name.clone(),
+                    position: self.pos(&w.name),
+                });
+            }
+            let turns = *w.turns.get_ref();
+            if !(turns.is_finite() && turns != 0.0) {
+                return Err(fail(
+                    w.turns.span().start,
+                    format!("`turns` must be finite and non-zero, got {turns}"),
+                ));
+            }
+            let current = *w.current.get_ref();
+            if !current.is_finite() {
+                return Err(fail(
+                    w.current.span().start,
+                    format!("`current` must be finite, got {current} A"),
+                ));
+            }
+            let mut winding = Winding::new(name, turns, current);
+            for (sides, sense) in [
+                (&w.positive, Sense::Positive),
+                (&w.negative, Sense::Negative),
+            ] {
+                for r in sides {
+                    if !region_exists(r.get_ref()) {
+                        return Err(fail(
+                            r.span().start,
+                            format!(
+                                "unknown region `{}` (a side must be a meshed region)",
+                                r.get_ref()
+                            ),
+                        ));
+                    }
+                    if winding.sides.iter().any(|s| &s.region == r.get_ref()) {
+                        return Err(fail(
+                            r.span().start,
+                            format!("region `{}` is listed twice", r.get_ref()),
+                        ));
+                    }
+                    winding = winding.side(r.get_ref(), sense);
+                }
+            }
+            if winding.sides.is_empty() {
+                return Err(fail(
+                    w.name.span().start,
+                    "a winding needs at least one side in `positive` or `negative`".into(),
+                ));
+            }
+            windings.push(winding);
+        }
+        let mut boundaries = Vec::new();
+        for (i, b) in raw_boundaries.iter().enumerate() {
+            let b = b.get_ref();
+            let kind = b.kind.get_ref().as_str();
+            let fail = |offset: usize, what: String| CaseError::Entry {
+                section: "boundary",
+                index: i + 1,
+                name: Some(kind.to_string()),
+                what,
+                position: Position::of_offset(self.source, offset),
+            };
+            let keys: [(&str, Option<usize>); 8] = [
+                ("curve", b.curve.as_ref().map(|v| v.span().start)),
+                ("value", b.value.as_ref().map(|v| v.span().start)),
+                ("first", b.first.as_ref().map(|v| v.span().start)),
+                ("second", b.second.as_ref().map(|v| v.span().start)),
+                ("circle", b.circle.as_ref().map(|v| v.span().start)),
+                (
+                    "exterior_boundary",
+                    b.exterior_boundary.as_ref().map(|v| v.span().start),
+                ),
+                (
+                    "exterior_region",
+                    b.exterior_region.as_ref().map(|v| v.span().start),
+                ),
+                (
+                    "exterior_centre",
+                    b.exterior_centre.as_ref().map(|v| v.span().start),
+                ),
+            ];
+            let allowed: &[&str] = match kind {
+                "fixed" => &["curve", "value"],
+                "periodic" | "anti_periodic" => &["first", "second"],
+                "open" => &[
+                    "circle",
+                    "exterior_boundary",
+                    "exterior_region",
+                    "exterior_centre",
+                ],
+                other => {
+                    return Err(fail(
+                        b.kind.span().start,
+                        format!(
+                            "unknown kind `{other}`, expected \"fixed\", \"periodic\", \
+                             \"anti_periodic\" or \"open\""
+                        ),
+                    ))
+                }
+            };
+            if let Some((key, Some(offset))) = keys
+                .iter()
+                .find(|(k, o)| o.is_some() && !allowed.contains(k))
+            {
+                return Err(fail(
+                    *offset,
+                    format!(
+                        "`{key}` does not apply to kind \"{kind}\" (it takes {})",
+                        allowed
+                            .iter()
+                            .map(|k| format!("`{k}`"))
+                            .collect::<Vec<_>>()
+                            .join(", ")
+                    ),
+                ));
+            }
+            let curve = |v: &Option<Spanned<String>>, key: &str| -> Result<String, CaseError> {
+                let v = v
+                    .as_ref()
+                    .ok_or_else(|| fail(b.kind.span().start, format!("missing `{key}`")))?;
+                if !curve_exists(v.get_ref()) {
+                    return Err(fail(
+                        v.span().start,
+                        format!("unknown curve `{}` (no curve has this name)", v.get_ref()),
+                    ));
+                }
+                Ok(v.get_ref().clone())
+            };
+            boundaries.push(match kind {
+                "fixed" => {
+                    let value = b.value.as_ref().map_or(0.0, |v| *v.get_ref());
+                    if !value.is_finite() {
+                        return Err(fail(
+                            b.value.as_ref().map_or(0, |v| v.span().start),
+                            format!("`value` must be finite, got {value} Wb/m"),
+                        ));
+                    }
+                    CaseBoundary::FixedPotential {
+                        curve: curve(&b.curve, "curve")?,
+                        value,
+                    }
+                }
+                "periodic" => CaseBoundary::Periodic {
+                    first: curve(&b.first, "first")?,
+                    second: curve(&b.second, "second")?,
+                },
+                "anti_periodic" => CaseBoundary::AntiPeriodic {
+                    first: curve(&b.first, "first")?,
+                    second: curve(&b.second, "second")?,
+                },
+                _ => {
+                    let region = b.exterior_region.as_ref().ok_or_else(|| {
+                        fail(b.kind.span().start, "missing `exterior_region`".into())
+                    })?;
+                    if !region_exists(region.get_ref()) {
+                        return Err(fail(
+                            region.span().start,
+                            format!("unknown region `{}`", region.get_ref()),
+                        ));
+                    }
+                    let c = b.exterior_centre.as_ref().ok_or_else(|| {
+                        fail(b.kind.span().start, "missing `exterior_centre`".into())
+                    })?;
+                    let centre =
+                        self.coords(unit, *c.get_ref(), self.pos(c), "exterior_centre", axi)?;
+                    CaseBoundary::Open(OpenBoundary {
+                        circle: curve(&b.circle, "circle")?,
+                        exterior_boundary: curve(&b.exterior_boundary, "exterior_boundary")?,
+                        exterior_region: region.get_ref().clone(),
+                        exterior_centre: [centre.x, centre.y],
+                    })
+                }
+            });
+        }
+        Ok((materials, windings, boundaries))
     }
 
     /// Checks a `[sweep]` against the geometry's rigid groups and regions.
@@ -1501,7 +2379,7 @@ material = "air"
 [regions.magnet]
 at = [3, 3]
 max_size = 0.5
-material = "N42"
+material = "ndfeb-n42"
 
 [regions.hole]
 at = [5, 5.5]
@@ -1563,7 +2441,7 @@ mover = ["magnet"]
         assert!(matches!(g.curves[8].shape, CurveShape::Arc { .. }));
         assert_eq!(case.region_names(), vec!["air", "magnet", "hole"]);
         assert!(g.regions[2].hole);
-        assert_eq!(case.region_material("magnet"), Some("N42"));
+        assert_eq!(case.region_material("magnet"), Some("ndfeb-n42"));
         assert_eq!(case.region_material("hole"), None);
         assert_eq!(g.rigid_groups.len(), 1);
         assert_eq!(g.rigid_groups[0].regions, vec!["magnet".to_string()]);
@@ -1813,13 +2691,45 @@ mover = ["magnet"]
     }
 
     #[test]
-    fn later_sections_are_kept_raw() {
-        let text = format!("{SMALL}\n[[material]]\nname = \"N42\"\nremanence = 1.3\n\n[[winding]]\nname = \"coil\"\nturns = 200\n");
+    fn solver_sections_are_read_with_the_case() {
+        let text = format!(
+            "{SMALL}\n[[material]]\nname = \"N42\"\nremanence = 1.3\nrecoil_permeability = 1.05\n\
+             direction_deg = 90\n\n[[winding]]\nname = \"coil\"\nturns = 200\ncurrent = 2\n\
+             positive = [\"magnet\"]\n\n[[boundary]]\nkind = \"fixed\"\ncurve = \"outer\"\n"
+        );
         let case = Case::from_toml_str(&text).unwrap();
-        assert_eq!(case.section("material").len(), 1);
-        assert_eq!(case.section("winding")[0]["turns"].as_integer(), Some(200));
-        assert!(case.section("boundary").is_empty());
-        assert!(case.section("unknown").is_empty());
+        assert_eq!(case.materials().len(), 1);
+        assert_eq!(case.materials()[0].name, "N42");
+        assert!(matches!(case.material("N42"), Ok(Material::Magnet(_))));
+        assert_eq!(case.material("air"), Ok(Material::vacuum()));
+        assert_eq!(case.windings()[0].turns, 200.0);
+        assert_eq!(case.windings()[0].current_a, 2.0);
+        assert_eq!(
+            case.boundaries(),
+            &[CaseBoundary::FixedPotential {
+                curve: "outer".into(),
+                value: 0.0
+            }]
+        );
+    }
+
+    #[test]
+    fn entries_are_located_by_their_headers() {
+        let text = "unit = \"m\"\n[[winding]]\nname = \"a\"\n[[material]]\nname = \"m\"\n\n[[winding]]\n# c\nname = \"b\"\nturn = 3\n";
+        let offset = text.find("turn =").unwrap();
+        assert_eq!(
+            entry_at(text, offset),
+            Some(("winding", 2, Some("b".into())))
+        );
+        assert_eq!(entry_at(text, 0), None);
+        assert_eq!(
+            plain_message("invalid type: string \"x\", expected f64"),
+            "invalid type: string \"x\", expected a number"
+        );
+        assert_eq!(
+            plain_message("invalid type: integer `3`, expected struct RawBrauer"),
+            "invalid type: integer `3`, expected a table"
+        );
     }
 
     proptest::proptest! {

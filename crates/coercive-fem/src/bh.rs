@@ -6,11 +6,12 @@
 //! vacuum plus a constant polarisation).
 //!
 //! # Guarantees
-//! - H(b) is strictly increasing and continuous, C1 inside the table; at the last knot the
+//! - H(b) is strictly increasing and continuous, C1 inside the table, with dH/dB > 0
+//!   everywhere (also at B = 0, so the Newton tangent never degenerates); at the last knot the
 //!   slope jumps to the vacuum value 1/mu_0 unless the data already end at vacuum slope (the
 //!   analytic constructors [`BhCurve::brauer`] and [`BhCurve::saturating`] sample far enough
 //!   that the jump is negligible).
-//! - Knot slopes satisfy 0 <= dH/dB <= 1/mu_0: the processed curve is never flatter than vacuum
+//! - Knot slopes satisfy 0 < dH/dB <= 1/mu_0: the processed curve is never flatter than vacuum
 //!   at a knot (the usual physical bound dB/dH >= mu_0).
 //! - The energy density w(b) = integral of H db is evaluated in closed form from the cubic
 //!   pieces, so energy and co-energy are exact for the interpolant.
@@ -41,7 +42,9 @@ const VACUUM_SLOPE_TOLERANCE: f64 = 1e-9;
 /// last point.
 ///
 /// (De)serialised as its processed table `{ b, h, dh_db }`; deserialisation re-checks the table
-/// (finite, starting at the origin, strictly increasing, slopes in [0, 1/mu_0]).
+/// (finite, starting at the origin, strictly increasing knots, slopes in (0, 1/mu_0], and
+/// every cubic piece strictly increasing), so a stored table cannot bring back a flat or
+/// decreasing curve.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(try_from = "BhTable", into = "BhTable")]
 pub struct BhCurve {
@@ -109,15 +112,32 @@ impl TryFrom<BhTable> for BhCurve {
             let ok = t.b[i].is_finite()
                 && t.h[i].is_finite()
                 && t.dh_db[i].is_finite()
-                && t.dh_db[i] >= 0.0
+                && t.dh_db[i] > 0.0
                 && t.dh_db[i] <= (1.0 + VACUUM_SLOPE_TOLERANCE) / MU_0
                 && (i == 0 || (t.b[i] > t.b[i - 1] && t.h[i] > t.h[i - 1]));
             if !ok {
                 return Err(MaterialError::InvalidTable {
                     reason: format!(
                         "knot {i} (H = {} A/m, B = {} T, dH/dB = {} A/(m T)) is not finite, not \
-                         increasing or has a slope outside [0, 1/mu_0]",
+                         increasing or has a slope outside (0, 1/mu_0]",
                         t.h[i], t.b[i], t.dh_db[i]
+                    ),
+                });
+            }
+        }
+        for i in 0..t.b.len() - 1 {
+            let secant = (t.h[i + 1] - t.h[i]) / (t.b[i + 1] - t.b[i]);
+            if !hermite_piece_increasing(t.dh_db[i] / secant, t.dh_db[i + 1] / secant) {
+                return Err(MaterialError::InvalidTable {
+                    reason: format!(
+                        "the piece from knot {i} (B = {} T) to knot {} (B = {} T) is not strictly \
+                         increasing: its slopes {} and {} A/(m T) are too steep for its secant \
+                         {secant} A/(m T)",
+                        t.b[i],
+                        i + 1,
+                        t.b[i + 1],
+                        t.dh_db[i],
+                        t.dh_db[i + 1]
                     ),
                 });
             }
@@ -516,6 +536,26 @@ pub(crate) fn saturating_h_of_b(js: f64, h0: f64, b: f64) -> f64 {
     }
 }
 
+/// Whether the cubic Hermite piece with end-slope ratios `alpha` = m_i/delta and
+/// `beta` = m_{i+1}/delta (delta the piece's secant, positive) is strictly increasing: with
+/// t in [0, 1] its normalised derivative is (3 alpha + 3 beta - 6) t^2 + (6 - 4 alpha - 2 beta)
+/// t + alpha, which must stay positive (the exact form of the region of Fritsch and Carlson,
+/// SIAM J. Numer. Anal. 17(2), 1980, made strict).
+fn hermite_piece_increasing(alpha: f64, beta: f64) -> bool {
+    if !(alpha > 0.0 && beta > 0.0 && alpha.is_finite() && beta.is_finite()) {
+        return false;
+    }
+    let a = 3.0 * alpha + 3.0 * beta - 6.0;
+    let b = 6.0 - 4.0 * alpha - 2.0 * beta;
+    if a > 0.0 {
+        let t = -b / (2.0 * a);
+        if t > 0.0 && t < 1.0 {
+            return alpha - b * b / (4.0 * a) > 0.0;
+        }
+    }
+    true
+}
+
 /// Steffen (1990) knot slopes for strictly increasing data, clamped to at most 1/mu_0.
 fn steffen_slopes(x: &[f64], y: &[f64]) -> Vec<f64> {
     let n = x.len();
@@ -528,15 +568,14 @@ fn steffen_slopes(x: &[f64], y: &[f64]) -> Vec<f64> {
         let p = (s[i - 1] * w[i] + s[i] * w[i - 1]) / (w[i - 1] + w[i]);
         m[i] = p.min(2.0 * s[i - 1]).min(2.0 * s[i]);
     }
-    // End points (Steffen eqs. 26-27): parabola through the first (last) three points,
-    // set to zero if of the wrong sign and limited to twice the end secant.
-    let end = |p: f64, s: f64| {
-        if p <= 0.0 {
-            0.0
-        } else {
-            p.min(2.0 * s)
-        }
-    };
+    // End points: the slope at the end of the parabola through the first (last) three
+    // points (Steffen eqs. 26-27), limited to [s/2, 2s] with s the end secant. Steffen sets a
+    // non-positive end slope to zero; here that would make dH/dB vanish at B = 0 (infinite
+    // initial permeability and a singular Newton tangent there), so the slope keeps at least
+    // half the end secant. With 1/2 <= alpha <= 2 and 0 < beta <= 2 every end piece stays
+    // inside the disc alpha^2 + beta^2 < 9 of Fritsch and Carlson (1980), hence strictly
+    // increasing.
+    let end = |p: f64, s: f64| p.clamp(0.5 * s, 2.0 * s);
     if n == 2 {
         m[0] = s[0];
         m[1] = s[0];

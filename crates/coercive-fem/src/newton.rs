@@ -107,7 +107,10 @@ pub enum NewtonFailureReason {
 }
 
 /// A failed Newton solve: the reason, the history and the last iterate.
-#[derive(Clone, Debug, PartialEq)]
+///
+/// Its `Debug` output summarises the last iterate (length and largest magnitude) instead of
+/// printing every node's potential.
+#[derive(Clone, PartialEq)]
 pub struct NewtonFailure {
     /// Why it stopped.
     pub reason: NewtonFailureReason,
@@ -116,6 +119,29 @@ pub struct NewtonFailure {
     /// The last iterate: the potential at every node (as in
     /// [`Solution::potential`](crate::Solution::potential)).
     pub last_potential: Vec<f64>,
+}
+
+impl fmt::Debug for NewtonFailure {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let largest = self.last_potential.iter().fold(0.0_f64, |m, a| {
+            if a.abs() > m || a.is_nan() {
+                a.abs()
+            } else {
+                m
+            }
+        });
+        f.debug_struct("NewtonFailure")
+            .field("reason", &self.reason)
+            .field("report", &self.report)
+            .field(
+                "last_potential",
+                &format_args!(
+                    "[{} values, largest |A| {largest:e} Wb/m]",
+                    self.last_potential.len()
+                ),
+            )
+            .finish()
+    }
 }
 
 impl fmt::Display for NewtonFailure {

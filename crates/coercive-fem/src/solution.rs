@@ -362,3 +362,85 @@ impl Solution {
         self.layout.order
     }
 }
+
+/// Non-panicking twins of the id-indexed getters, for ids that come from outside (a file, a
+/// user, another mesh): an id beyond the mesh is a typed error naming the id and the count.
+impl Solution {
+    fn check_triangle(&self, t: TriangleId) -> Result<usize, FemError> {
+        let count = self.model.mesh().triangles().len();
+        if t.index() < count {
+            Ok(t.index())
+        } else {
+            Err(FemError::OutOfRange {
+                what: "triangle id".into(),
+                value: t.index() as f64,
+                reason: format!(
+                    "the mesh has {count} triangles (ids 0 to {})",
+                    count.max(1) - 1
+                ),
+            })
+        }
+    }
+
+    /// [`Solution::vertex_potential`] without panicking.
+    ///
+    /// # Errors
+    /// [`FemError::OutOfRange`] if `v` is not a vertex of the mesh.
+    pub fn try_vertex_potential(&self, v: VertexId) -> Result<f64, FemError> {
+        let count = self.model.mesh().vertices().len();
+        match self.potential.get(v.index()) {
+            Some(&a) if v.index() < count => Ok(a),
+            _ => Err(FemError::OutOfRange {
+                what: "vertex id".into(),
+                value: v.index() as f64,
+                reason: format!(
+                    "the mesh has {count} vertices (ids 0 to {})",
+                    count.max(1) - 1
+                ),
+            }),
+        }
+    }
+
+    /// [`Solution::triangle_nodes`] without panicking.
+    ///
+    /// # Errors
+    /// [`FemError::OutOfRange`] if `t` is not a triangle of the mesh.
+    pub fn try_triangle_nodes(&self, t: TriangleId) -> Result<&[u32], FemError> {
+        let t = self.check_triangle(t)?;
+        Ok(self.layout.triangle_dofs(t))
+    }
+
+    /// [`Solution::flux_density_at_quadrature`] without panicking: B (T) at the quadrature
+    /// points of triangle `t`.
+    ///
+    /// # Errors
+    /// [`FemError::OutOfRange`] if `t` is not a triangle of the mesh.
+    pub fn try_flux_density_at_quadrature(&self, t: TriangleId) -> Result<&[[f64; 2]], FemError> {
+        let t = self.check_triangle(t)?;
+        let nq = self.rule.len();
+        self.flux_density
+            .get(t * nq..(t + 1) * nq)
+            .ok_or_else(|| FemError::OutOfRange {
+                what: "triangle id".into(),
+                value: t as f64,
+                reason: "no stored flux density for this triangle".into(),
+            })
+    }
+
+    /// [`Solution::field_strength_at_quadrature`] without panicking: H (A/m) at the
+    /// quadrature points of triangle `t`.
+    ///
+    /// # Errors
+    /// [`FemError::OutOfRange`] if `t` is not a triangle of the mesh.
+    pub fn try_field_strength_at_quadrature(&self, t: TriangleId) -> Result<&[[f64; 2]], FemError> {
+        let t = self.check_triangle(t)?;
+        let nq = self.rule.len();
+        self.field_strength
+            .get(t * nq..(t + 1) * nq)
+            .ok_or_else(|| FemError::OutOfRange {
+                what: "triangle id".into(),
+                value: t as f64,
+                reason: "no stored field strength for this triangle".into(),
+            })
+    }
+}

@@ -230,3 +230,75 @@ fn a_mesh_node_outside_every_triangle_is_harmless() {
     assert_eq!(*sol.potential().last().unwrap(), 0.0);
     assert!(sol.energy() > 0.0);
 }
+
+/// Ids from outside the mesh give typed errors through the `try_` getters, never a panic.
+#[test]
+fn try_getters_reject_ids_beyond_the_mesh() {
+    use coercive_mesh::{TriangleId, VertexId};
+    let solution = builder()
+        .material("air", Material::vacuum())
+        .fixed_potential("left", 0.0)
+        .current_density("air", 1.0e6)
+        .build()
+        .unwrap()
+        .solve()
+        .unwrap();
+    let triangles = solution.model().mesh().triangles().len() as u32;
+    let vertices = solution.model().mesh().vertices().len() as u32;
+    let last = TriangleId(triangles - 1);
+    assert_eq!(
+        solution.try_triangle_nodes(last).unwrap(),
+        solution.triangle_nodes(last)
+    );
+    assert_eq!(
+        solution.try_flux_density_at_quadrature(last).unwrap(),
+        solution.flux_density_at_quadrature(last)
+    );
+    assert_eq!(
+        solution.try_field_strength_at_quadrature(last).unwrap(),
+        solution.field_strength_at_quadrature(last)
+    );
+    assert_eq!(
+        solution
+            .try_vertex_potential(VertexId(vertices - 1))
+            .unwrap(),
+        solution.vertex_potential(VertexId(vertices - 1))
+    );
+    for t in [TriangleId(triangles), TriangleId(u32::MAX)] {
+        for e in [
+            solution.try_triangle_nodes(t).unwrap_err(),
+            solution.try_flux_density_at_quadrature(t).unwrap_err(),
+            solution.try_field_strength_at_quadrature(t).unwrap_err(),
+        ] {
+            assert!(
+                matches!(&e, FemError::OutOfRange { what, .. } if what == "triangle id"),
+                "{e}"
+            );
+            assert!(
+                e.to_string().contains(&format!("{triangles} triangles")),
+                "{e}"
+            );
+        }
+    }
+    let e = solution
+        .try_vertex_potential(VertexId(vertices))
+        .unwrap_err();
+    assert!(
+        e.to_string().contains(&format!("{vertices} vertices")),
+        "{e}"
+    );
+}
+
+/// A failed Newton solve's Debug output summarises the last iterate instead of listing it.
+#[test]
+fn newton_failure_debug_does_not_print_the_iterate() {
+    let failure = coercive_fem::NewtonFailure {
+        reason: coercive_fem::NewtonFailureReason::MaxIterations,
+        report: coercive_fem::NewtonReport::default(),
+        last_potential: vec![1.25e-3; 100_000],
+    };
+    let text = format!("{:?}", FemError::NewtonFailed(Box::new(failure)));
+    assert!(text.len() < 1000, "{} characters", text.len());
+    assert!(text.contains("100000 values"), "{text}");
+    assert!(text.contains("MaxIterations"), "{text}");
+}
