@@ -335,24 +335,35 @@ where
                 ),
             ));
         }
-        let fraction =
-            |o: &PulseOutcome| (o.switched_polarisation_t - start_polarisation) / span;
+        let fraction = |o: &PulseOutcome| (o.switched_polarisation_t - start_polarisation) / span;
         let mut evaluations = vec![(full.amplitude_a, fraction(full))];
+        // Trisection with the two interior amplitudes solved in parallel: each round keeps
+        // the third of the interval where the switched fraction crosses the criterion (it
+        // grows with the amplitude).
         let (mut lo, mut hi) = (0.0, s.full_pulse_a.abs());
         while (hi - lo) > s.amplitude_tolerance * hi {
-            let mid = 0.5 * (lo + hi);
-            let o = self.pulse(start, sign * mid, Workpiece::Present)?;
-            let f = fraction(&o);
-            evaluations.push((o.amplitude_a, f));
-            if f >= s.switched_fraction {
-                hi = mid;
+            let (m1, m2) = (lo + (hi - lo) / 3.0, lo + 2.0 * (hi - lo) / 3.0);
+            let (o1, o2) = rayon::join(
+                || self.pulse(start, sign * m1, Workpiece::Present),
+                || self.pulse(start, sign * m2, Workpiece::Present),
+            );
+            let (f1, f2) = (fraction(&o1?), fraction(&o2?));
+            evaluations.push((sign * m1, f1));
+            evaluations.push((sign * m2, f2));
+            if f1 >= s.switched_fraction {
+                hi = m1;
+            } else if f2 >= s.switched_fraction {
+                (lo, hi) = (m1, m2);
             } else {
-                lo = mid;
+                lo = m2;
             }
         }
         let amplitude_a = sign * hi;
-        let recommended =
-            self.pulse(start, amplitude_a * s.recommended_margin, Workpiece::Present)?;
+        let recommended = self.pulse(
+            start,
+            amplitude_a * s.recommended_margin,
+            Workpiece::Present,
+        )?;
         Ok(Threshold {
             direction: direction.into(),
             amplitude_a,
@@ -450,7 +461,10 @@ where
     let removed = build(mesh, Workpiece::Removed).map_err(|e| solve_error("model", e))?;
     for region in [&setup.switched_magnet, &setup.guarded_magnet] {
         let r = present.mesh().region_by_name(region).ok_or_else(|| {
-            invalid("switching study", format!("no region `{region}` in the mesh"))
+            invalid(
+                "switching study",
+                format!("no region `{region}` in the mesh"),
+            )
         })?;
         if !matches!(present.material(r), Material::Hysteretic(_)) {
             return Err(invalid(
@@ -490,7 +504,24 @@ where
     let full = settings.full_pulse_a.abs();
     let magnetised = MagnetState::initial(&ctx.present);
     let first_off = ctx.pulse(&magnetised, off * full, Workpiece::Present)?;
-    let off_full = first_off.state.clone().unwrap_or_else(|| magnetised.clone());
+    if first_off.switched_polarisation_t >= 0.0 {
+        return Err(invalid(
+            "off_current_sign",
+            format!(
+                "a full pulse of {:.1} A left `{}` magnetised along its easy axis (mean \
+                 polarisation {:+.3} T): this current sign drives it forward; the OFF sign is \
+                 {:+}",
+                off * full,
+                setup.switched_magnet,
+                first_off.switched_polarisation_t,
+                -off
+            ),
+        ));
+    }
+    let off_full = first_off
+        .state
+        .clone()
+        .unwrap_or_else(|| magnetised.clone());
     let on_full_outcome = ctx.pulse(&off_full, -off * full, Workpiece::Present)?;
     let on_full = on_full_outcome
         .state
@@ -512,8 +543,16 @@ where
         &on_full_outcome,
         -off,
     )?;
-    let on_state = off_to_on.recommended.state.clone().unwrap_or(on_full.clone());
-    let off_state = on_to_off.recommended.state.clone().unwrap_or(off_full.clone());
+    let on_state = off_to_on
+        .recommended
+        .state
+        .clone()
+        .unwrap_or(on_full.clone());
+    let off_state = on_to_off
+        .recommended
+        .state
+        .clone()
+        .unwrap_or(off_full.clone());
     let removed = [
         ctx.pulse(
             &on_full,
@@ -581,7 +620,10 @@ fn check(setup: &SwitchingSetup, settings: &SwitchingSettings) -> Result<(), Stu
         if v.is_finite() && v > 0.0 {
             Ok(())
         } else {
-            Err(invalid(what, format!("must be positive and finite, got {v}")))
+            Err(invalid(
+                what,
+                format!("must be positive and finite, got {v}"),
+            ))
         }
     };
     positive("full_pulse_a (A)", settings.full_pulse_a.abs())?;
@@ -617,8 +659,15 @@ fn check(setup: &SwitchingSetup, settings: &SwitchingSettings) -> Result<(), Stu
             "at least one amplitude".into(),
         ));
     }
-    if let Some(g) = settings.gaps_m.iter().find(|g| !(g.is_finite() && **g > 0.0)) {
-        return Err(invalid("gaps_m (m)", format!("gaps must be positive, got {g}")));
+    if let Some(g) = settings
+        .gaps_m
+        .iter()
+        .find(|g| !(g.is_finite() && **g > 0.0))
+    {
+        return Err(invalid(
+            "gaps_m (m)",
+            format!("gaps must be positive, got {g}"),
+        ));
     }
     Ok(())
 }

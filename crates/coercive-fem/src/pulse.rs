@@ -289,6 +289,32 @@ impl std::error::Error for HistoryError {
     }
 }
 
+/// The starting potential of a load step towards `target` currents: along a ramp that
+/// continues in the same direction, the linear extrapolation of the last two converged
+/// potentials (a secant predictor that saves Newton iterations); after a reversal, or at the
+/// first steps, the last converged potential.
+fn predict(
+    previous: &Option<(Vec<f64>, Vec<f64>)>,
+    from: Option<&[f64]>,
+    a: &[f64],
+    target: &[f64],
+) -> Vec<f64> {
+    let (Some((c0, a0)), Some(c1)) = (previous, from) else {
+        return a.to_vec();
+    };
+    let d_old: Vec<f64> = c1.iter().zip(c0).map(|(x, y)| x - y).collect();
+    let d_new: Vec<f64> = target.iter().zip(c1).map(|(x, y)| x - y).collect();
+    let dot: f64 = d_old.iter().zip(&d_new).map(|(x, y)| x * y).sum();
+    let n_old: f64 = d_old.iter().map(|x| x * x).sum();
+    let n_new: f64 = d_new.iter().map(|x| x * x).sum();
+    // Same direction (cosine above 0.999) only: a reversal changes the magnets' branch.
+    if n_old == 0.0 || dot <= 0.0 || dot * dot < 0.998 * n_old * n_new {
+        return a.to_vec();
+    }
+    let r = dot / n_old;
+    a.iter().zip(a0).map(|(x, y)| x + r * (x - y)).collect()
+}
+
 impl Solver {
     /// Solves `model` through the load history `pulse`, starting from the committed `state`
     /// (e.g. [`MagnetState::initial`] or the state another history left). The pulse sets the
@@ -415,6 +441,8 @@ impl Solver {
         }
 
         let mut from: Option<Vec<f64>> = None;
+        // The converged step before `from`, for the linear predictor along a ramp.
+        let mut previous: Option<(Vec<f64>, Vec<f64>)> = None;
         let n_targets = targets.len();
         for (target_index, (target, waypoint)) in targets.into_iter().enumerate() {
             // Reach `target` from `from` (the last converged currents), halving on failure.
@@ -438,7 +466,7 @@ impl Solver {
                 }
                 let result = ok.and_then(|_| {
                     let step_model = Arc::new(step_model);
-                    let mut trial = a.clone();
+                    let mut trial = predict(&previous, from.as_deref(), &a, &currents);
                     self.step(
                         &step_model,
                         &layout,
@@ -453,6 +481,7 @@ impl Solver {
                 });
                 match result {
                     Ok((solution, potential)) => {
+                        previous = from.clone().map(|c| (c, a.clone()));
                         a = potential;
                         run.state = solution.magnet_state().clone();
                         let is_final = pending.is_empty();
