@@ -250,6 +250,77 @@ struct RawCase {
     boundary: Vec<Spanned<RawBoundary>>,
     #[serde(default)]
     sweep: Option<Spanned<RawSweep>>,
+    #[serde(default)]
+    switching: Option<Spanned<RawSwitching>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawSwitching {
+    moving_part: Spanned<String>,
+    direction: Spanned<[f64; 2]>,
+    drawn_gap: Spanned<f64>,
+    gaps: Spanned<Vec<f64>>,
+    workpiece: Spanned<Vec<Spanned<String>>>,
+    pulse_gap: Spanned<f64>,
+    coil: Spanned<String>,
+    switched_magnet: Spanned<String>,
+    guarded_magnet: Spanned<String>,
+    off_current_sign: Spanned<f64>,
+    full_pulse: Spanned<f64>,
+    #[serde(default)]
+    switched_fraction: Option<Spanned<f64>>,
+    #[serde(default)]
+    amplitude_tolerance: Option<Spanned<f64>>,
+    #[serde(default)]
+    recommended_margin: Option<Spanned<f64>>,
+    #[serde(default)]
+    partial_amplitudes: Option<Spanned<i64>>,
+    #[serde(default)]
+    pulse_duration_ms: Option<Spanned<f64>>,
+    #[serde(default)]
+    max_step: Option<Spanned<f64>>,
+}
+
+/// The optional `[switching]` section: the pulses that switch a switchable magnet ON and OFF
+/// and the holding force in each state (see [`crate::switching`]). Lengths in metres,
+/// currents in amperes per turn.
+#[derive(Clone, Debug, PartialEq)]
+pub struct CaseSwitching {
+    /// The moving part (rigid group) carrying the magnets, poles and coil.
+    pub moving_part: String,
+    /// Unit vector of the moving part's motion that closes the gap.
+    pub direction: [f64; 2],
+    /// The gap as drawn (m).
+    pub drawn_gap_m: f64,
+    /// Gaps of the ON and OFF force curves (m).
+    pub gaps_m: Vec<f64>,
+    /// The workpiece's regions.
+    pub workpiece: Vec<String>,
+    /// The gap at which pulses are applied with the workpiece in place (m).
+    pub pulse_gap_m: f64,
+    /// The coil's winding.
+    pub coil: String,
+    /// The low-coercivity magnet's region.
+    pub switched_magnet: String,
+    /// The high-coercivity magnet's region.
+    pub guarded_magnet: String,
+    /// +1 or -1: the coil current sign that drives the switched magnet against its easy axis.
+    pub off_current_sign: f64,
+    /// A pulse (A per turn) that certainly switches fully.
+    pub full_pulse_a: f64,
+    /// Fraction of the full switch that counts as switched.
+    pub switched_fraction: f64,
+    /// Relative tolerance of the threshold.
+    pub amplitude_tolerance: f64,
+    /// Recommended pulse / threshold.
+    pub recommended_margin: f64,
+    /// Amplitudes of the partial-switching curve.
+    pub partial_amplitudes: usize,
+    /// Intended pulse duration (s), for the eddy-current note.
+    pub pulse_duration_s: f64,
+    /// Largest current change per load step as a fraction of the pulse's peak.
+    pub max_step: f64,
 }
 
 #[derive(Deserialize)]
@@ -567,6 +638,8 @@ pub struct CaseMaterial {
     pub name: String,
     /// The material law, built and validated when the file was read.
     pub material: Material,
+    /// Electrical resistivity (Ohm m) when the law comes from a hysteretic magnet datasheet.
+    pub resistivity_ohm_m: Option<f64>,
     /// Where the entry's name is written in the file.
     pub position: Position,
 }
@@ -709,6 +782,7 @@ pub struct Case {
     windings: Vec<Winding>,
     boundaries: Vec<CaseBoundary>,
     sweep: Option<CaseSweep>,
+    switching: Option<CaseSwitching>,
 }
 
 impl Case {
@@ -850,6 +924,11 @@ impl Case {
     /// The `[sweep]` section, if any (checked when the file was read).
     pub fn sweep(&self) -> Option<&CaseSweep> {
         self.sweep.as_ref()
+    }
+
+    /// The `[switching]` section, if any (checked when the file was read).
+    pub fn switching(&self) -> Option<&CaseSwitching> {
+        self.switching.as_ref()
     }
 
     /// The geometry part of the case, in metres, with the `[mesh]` settings.
@@ -1127,6 +1206,11 @@ impl Reader<'_> {
             Some(sw) => Some(self.sweep(unit, sw, &geometry)?),
         };
 
+        let switching = match &raw.switching {
+            None => None,
+            Some(sw) => Some(self.switching(unit, sw, &geometry)?),
+        };
+
         let spanned_materials: Vec<(&Spanned<String>, Option<&Spanned<String>>)> = regions
             .iter()
             .map(|(name, r)| (name, r.material.as_ref()))
@@ -1140,6 +1224,15 @@ impl Reader<'_> {
             &raw.boundary,
             &spanned_materials,
         )?;
+        if let (Some(sw), Some(raw_sw)) = (&switching, &raw.switching) {
+            if !windings.iter().any(|w| w.name == sw.coil) {
+                return Err(CaseError::UnknownName {
+                    kind: "winding",
+                    name: sw.coil.clone(),
+                    position: self.pos(&raw_sw.get_ref().coil),
+                });
+            }
+        }
         Ok(Case {
             source: self.source.to_string(),
             path: None,
@@ -1156,6 +1249,7 @@ impl Reader<'_> {
             windings,
             boundaries,
             sweep,
+            switching,
         })
     }
 
@@ -1477,6 +1571,7 @@ impl Reader<'_> {
             .validate()
             .map_err(|e| material_error(law_offset, e))?;
         Ok(CaseMaterial {
+            resistivity_ohm_m: None,
             name: name.to_string(),
             material,
             position: self.pos(&m.name),
@@ -1809,6 +1904,143 @@ impl Reader<'_> {
             values_m,
             offsets_m,
             body,
+        })
+    }
+
+    /// Checks a `[switching]` section against the geometry's moving parts and regions (the
+    /// coil and the magnets' laws are checked with the solver sections).
+    fn switching(
+        &self,
+        unit: LengthUnit,
+        raw: &Spanned<RawSwitching>,
+        geometry: &Geometry,
+    ) -> Result<CaseSwitching, CaseError> {
+        let sw = raw.get_ref();
+        if !geometry
+            .rigid_groups
+            .iter()
+            .any(|g| &g.name == sw.moving_part.get_ref())
+        {
+            return Err(CaseError::UnknownName {
+                kind: "moving part",
+                name: sw.moving_part.get_ref().clone(),
+                position: self.pos(&sw.moving_part),
+            });
+        }
+        let region = |r: &Spanned<String>| {
+            if geometry.regions.iter().any(|g| &g.name == r.get_ref()) {
+                Ok(r.get_ref().clone())
+            } else {
+                Err(CaseError::UnknownName {
+                    kind: "region",
+                    name: r.get_ref().clone(),
+                    position: self.pos(r),
+                })
+            }
+        };
+        let [dx, dy] = *sw.direction.get_ref();
+        let norm = dx.hypot(dy);
+        if !(norm.is_finite() && norm > 0.0) {
+            return Err(self.invalid(
+                &sw.direction,
+                format!("switching direction must be a non-zero vector, got [{dx}, {dy}]"),
+            ));
+        }
+        let positive = |v: &Spanned<f64>, what: &str| {
+            let x = *v.get_ref();
+            if x.is_finite() && x > 0.0 {
+                Ok(x)
+            } else {
+                Err(self.invalid(v, format!("switching `{what}` must be positive, got {x}")))
+            }
+        };
+        let length = |v: &Spanned<f64>, what: &str| Ok(unit.to_metres(positive(v, what)?));
+        if sw.gaps.get_ref().is_empty() {
+            return Err(self.invalid(&sw.gaps, "switching `gaps` must not be empty".into()));
+        }
+        if let Some(g) = sw
+            .gaps
+            .get_ref()
+            .iter()
+            .find(|g| !(g.is_finite() && **g > 0.0))
+        {
+            return Err(self.invalid(&sw.gaps, format!("switching gap {g} must be positive")));
+        }
+        let workpiece = sw
+            .workpiece
+            .get_ref()
+            .iter()
+            .map(region)
+            .collect::<Result<Vec<_>, _>>()?;
+        if workpiece.is_empty() {
+            return Err(self.invalid(
+                &sw.workpiece,
+                "switching `workpiece` names no region".into(),
+            ));
+        }
+        let sign = *sw.off_current_sign.get_ref();
+        if sign != 1.0 && sign != -1.0 {
+            return Err(self.invalid(
+                &sw.off_current_sign,
+                format!("`off_current_sign` is +1 or -1, got {sign}"),
+            ));
+        }
+        let optional = |v: &Option<Spanned<f64>>, what: &str, default: f64| match v {
+            None => Ok(default),
+            Some(v) => positive(v, what),
+        };
+        let fraction = optional(&sw.switched_fraction, "switched_fraction", 0.95)?;
+        if fraction >= 1.0 {
+            let at = sw.switched_fraction.as_ref().unwrap_or(&sw.full_pulse);
+            return Err(self.invalid(
+                at,
+                format!("`switched_fraction` must be below 1, got {fraction}"),
+            ));
+        }
+        let tolerance = optional(&sw.amplitude_tolerance, "amplitude_tolerance", 0.01)?;
+        if tolerance >= 0.5 {
+            let at = sw.amplitude_tolerance.as_ref().unwrap_or(&sw.full_pulse);
+            return Err(self.invalid(
+                at,
+                format!("`amplitude_tolerance` must be below 0.5, got {tolerance}"),
+            ));
+        }
+        let partial = match &sw.partial_amplitudes {
+            None => 8,
+            Some(n) if *n.get_ref() >= 1 && *n.get_ref() <= 1000 => *n.get_ref() as usize,
+            Some(n) => {
+                return Err(self.invalid(
+                    n,
+                    format!(
+                        "`partial_amplitudes` must be 1 to 1000, got {}",
+                        n.get_ref()
+                    ),
+                ))
+            }
+        };
+        Ok(CaseSwitching {
+            moving_part: sw.moving_part.get_ref().clone(),
+            direction: [dx / norm, dy / norm],
+            drawn_gap_m: length(&sw.drawn_gap, "drawn_gap")?,
+            gaps_m: sw
+                .gaps
+                .get_ref()
+                .iter()
+                .map(|g| unit.to_metres(*g))
+                .collect(),
+            workpiece,
+            pulse_gap_m: length(&sw.pulse_gap, "pulse_gap")?,
+            coil: sw.coil.get_ref().clone(),
+            switched_magnet: region(&sw.switched_magnet)?,
+            guarded_magnet: region(&sw.guarded_magnet)?,
+            off_current_sign: sign,
+            full_pulse_a: positive(&sw.full_pulse, "full_pulse")?,
+            switched_fraction: fraction,
+            amplitude_tolerance: tolerance,
+            recommended_margin: optional(&sw.recommended_margin, "recommended_margin", 1.25)?,
+            partial_amplitudes: partial,
+            pulse_duration_s: 1e-3 * optional(&sw.pulse_duration_ms, "pulse_duration_ms", 1.0)?,
+            max_step: optional(&sw.max_step, "max_step", 0.1)?,
         })
     }
 

@@ -96,6 +96,53 @@ pub fn study_model(case: &Case, mesh: Mesh) -> Result<Model, FemError> {
     })
 }
 
+/// The largest side of the bounding box of `mesh` (m).
+pub fn mesh_extent(mesh: &Mesh) -> f64 {
+    let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
+    for p in mesh.vertices() {
+        lo = [lo[0].min(p.x), lo[1].min(p.y)];
+        hi = [hi[0].max(p.x), hi[1].max(p.y)];
+    }
+    (hi[0] - lo[0]).max(hi[1] - lo[1])
+}
+
+/// The force-sweep settings every case study uses: the moving part `group` along
+/// `direction`, the force on `body`, the action-reaction check on `group_body`; co-energy
+/// steps of a tenth of the gap (`gaps`) or 1e-4 of the model's `extent` (offsets), at least
+/// 1e-5 of the extent.
+pub fn sweep_settings(
+    group: &str,
+    direction: [f64; 2],
+    body: Body,
+    group_body: Body,
+    extent: f64,
+    gaps: bool,
+) -> ForceSweepSettings {
+    ForceSweepSettings {
+        group: group.to_string(),
+        direction,
+        body,
+        group_body,
+        relative_step: 0.1,
+        min_step_m: if gaps {
+            (1e-5 * extent).max(f64::MIN_POSITIVE)
+        } else {
+            (1e-4 * extent).max(f64::MIN_POSITIVE)
+        },
+        force: ForceSettings::default(),
+    }
+}
+
+/// The resistivity (Ohm m) of the material of `region` when it is a hysteretic magnet preset
+/// (from its datasheet).
+pub fn resistivity_of(case: &Case, region: &str) -> Option<f64> {
+    let name = case.region_material(region)?;
+    case.materials()
+        .iter()
+        .find(|m| m.name == name)
+        .and_then(|m| m.resistivity_ohm_m)
+}
+
 /// The summary of a solved case that `coercive solve` prints (SI units).
 #[derive(Clone, Debug, PartialEq, serde::Serialize)]
 pub struct SolveSummary {
@@ -270,15 +317,7 @@ pub fn run_sweep(case: &Case) -> Result<SweepSummary, SweepError> {
             source,
             position: None,
         })?;
-    let extent = {
-        let v = drawn.vertices();
-        let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
-        for p in v {
-            lo = [lo[0].min(p.x), lo[1].min(p.y)];
-            hi = [hi[0].max(p.x), hi[1].max(p.y)];
-        }
-        (hi[0] - lo[0]).max(hi[1] - lo[1])
-    };
+    let extent = mesh_extent(&drawn);
     model_from_case(case, drawn)?;
     let build = |mesh: Mesh| study_model(case, mesh);
     let unit = case.unit();
@@ -298,20 +337,14 @@ pub fn run_sweep(case: &Case) -> Result<SweepSummary, SweepError> {
             offset: [o * sw.direction[0], o * sw.direction[1]],
         })
         .collect();
-    let settings = ForceSweepSettings {
-        group: sw.group.clone(),
-        direction: sw.direction,
-        body: Body::new(&sw.body.iter().map(String::as_str).collect::<Vec<_>>()),
-        group_body: Body::new(&group_regions),
-        // Gaps: a step of a tenth of the gap; offsets: a fixed step of 1e-4 of the model.
-        relative_step: 0.1,
-        min_step_m: if gaps {
-            (1e-5 * extent).max(f64::MIN_POSITIVE)
-        } else {
-            (1e-4 * extent).max(f64::MIN_POSITIVE)
-        },
-        force: ForceSettings::default(),
-    };
+    let settings = sweep_settings(
+        &sw.group,
+        sw.direction,
+        Body::new(&sw.body.iter().map(String::as_str).collect::<Vec<_>>()),
+        Body::new(&group_regions),
+        extent,
+        gaps,
+    );
     let points_out = force_sweep(&rigid, &points, &settings, build)?;
     let depth_m = match case.formulation() {
         CaseFormulation::Planar => Some(case.depth().unwrap_or(1.0)),

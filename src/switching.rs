@@ -671,3 +671,102 @@ fn check(setup: &SwitchingSetup, settings: &SwitchingSettings) -> Result<(), Stu
     }
     Ok(())
 }
+
+/// Runs the `[switching]` section of `case`: the moving part and workpiece from the section,
+/// the model of every mesh from the case's own sections (the workpiece made air for the
+/// pulses with the workpiece removed), both magnets hysteretic.
+///
+/// # Errors
+/// [`StudyError::Invalid`] when the case has no `[switching]` section or its set-up does not
+/// fit the study, and the study's own errors.
+pub fn run_case(case: &crate::case::Case) -> Result<SwitchingReport, StudyError> {
+    let sw = case
+        .switching()
+        .ok_or_else(|| invalid("case", "it has no [switching] section".into()))?;
+    let geometry = case
+        .geometry()
+        .map_err(|e| invalid("case geometry", e.to_string()))?;
+    let group_regions: Vec<String> = geometry
+        .rigid_groups
+        .iter()
+        .find(|g| g.name == sw.moving_part)
+        .map(|g| g.regions.clone())
+        .unwrap_or_default();
+    let rigid = geometry
+        .prepare_rigid()
+        .map_err(|source| StudyError::Mesh {
+            index: 0,
+            label: "moving part".into(),
+            source,
+        })?;
+    let workpiece = Body::new(&sw.workpiece);
+    let group_body = Body::new(&group_regions);
+    let drawn = rigid.mesh_at(&[]).map_err(|source| StudyError::Mesh {
+        index: 0,
+        label: "drawn position".into(),
+        source,
+    })?;
+    let extent = crate::solve::mesh_extent(&drawn);
+    let settings = SwitchingSettings {
+        gaps_m: sw.gaps_m.clone(),
+        full_pulse_a: sw.full_pulse_a,
+        switched_fraction: sw.switched_fraction,
+        amplitude_tolerance: sw.amplitude_tolerance,
+        recommended_margin: sw.recommended_margin,
+        partial_amplitudes: sw.partial_amplitudes,
+        pulse_duration_s: sw.pulse_duration_s,
+        switched_resistivity_ohm_m: 0.0,
+        history: HistorySettings {
+            max_step: sw.max_step,
+            ..HistorySettings::default()
+        },
+        sweep: crate::solve::sweep_settings(
+            &sw.moving_part,
+            sw.direction,
+            workpiece.clone(),
+            group_body.clone(),
+            extent,
+            true,
+        ),
+    };
+    let setup = SwitchingSetup {
+        group: sw.moving_part.clone(),
+        direction: sw.direction,
+        drawn_gap_m: sw.drawn_gap_m,
+        workpiece,
+        group_body,
+        coil: sw.coil.clone(),
+        switched_magnet: sw.switched_magnet.clone(),
+        guarded_magnet: sw.guarded_magnet.clone(),
+        pulse_gap_m: sw.pulse_gap_m,
+        off_current_sign: sw.off_current_sign,
+    };
+    let settings = SwitchingSettings {
+        switched_resistivity_ohm_m: crate::solve::resistivity_of(case, &sw.switched_magnet)
+            .ok_or_else(|| {
+                invalid(
+                    "switched_magnet",
+                    format!(
+                        "the material of `{}` must be a hysteretic magnet preset (its \
+                         resistivity is needed for the eddy-current note)",
+                        sw.switched_magnet
+                    ),
+                )
+            })?,
+        ..settings
+    };
+    let build = |mesh: Mesh, w: Workpiece| {
+        let model = crate::solve::study_model(case, mesh)?;
+        match w {
+            Workpiece::Present => Ok(model),
+            Workpiece::Removed => {
+                let mut b = model.to_builder();
+                for r in &sw.workpiece {
+                    b = b.replace_material(r, Material::vacuum());
+                }
+                b.build()
+            }
+        }
+    };
+    switching_study(&rigid, &setup, &settings, build)
+}

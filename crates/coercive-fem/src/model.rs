@@ -218,6 +218,14 @@ impl ModelBuilder {
         self
     }
 
+    /// Assigns `material` to `region`, replacing the material it had in this builder (e.g. a
+    /// workpiece made air to model its removal); adds it if it had none.
+    pub fn replace_material(mut self, region: &str, material: Material) -> Self {
+        self.materials.retain(|(r, _)| r != region);
+        self.materials.push((region.to_string(), material));
+        self
+    }
+
     /// Adds a uniform current density `j` (A/m^2, along +z planar or +phi axisymmetric) in
     /// region `region`.
     pub fn current_density(mut self, region: &str, j: f64) -> Self {
