@@ -7,6 +7,7 @@ pub mod bh;
 mod dof;
 pub mod element;
 mod error;
+pub mod hysteresis;
 pub mod library;
 mod linsolve;
 pub mod material;
@@ -19,6 +20,9 @@ mod solver;
 pub use bh::{BhCurve, BhKnot, BhTable};
 pub use element::ElementOrder;
 pub use error::FemError;
+pub use hysteresis::{
+    datasheet, datasheet_names, FittedLaw, History, HysteresisLaw, MagnetDatasheet, Sigmoid,
+};
 pub use linsolve::LinearSolverKind;
 pub use material::{
     LinearMagnet, MagnetDirection, Material, MaterialError, Response, SoftMagnetic, MU_0,
