@@ -819,16 +819,24 @@ impl HysteresisLaw {
     }
 
     /// The inverse of [`HysteresisLaw::flux_density`] with the history fixed: H (A/m) and
-    /// dH/dB (A/(m T)) for flux density `b` (T) along the axis.
+    /// dH/dB (A/(m T)) for flux density `b` (T) along the axis, starting from the last input.
+    /// See [`HysteresisLaw::field_strength_near`].
+    pub fn field_strength(&self, history: &History, b: f64) -> (f64, f64) {
+        self.field_strength_near(history, b, history.last_input)
+    }
+
+    /// The inverse of [`HysteresisLaw::flux_density`] starting from `guess` (A/m), e.g. the
+    /// point's H at the previous Newton iteration of the field solver.
     ///
     /// B(h) is continuous and strictly increasing (slope >= mu_0) with |B - mu_0 h| <= Js + J_r,
     /// so the solution is unique and lies in [(b - Js - J_r)/mu_0, (b + Js + J_r)/mu_0].
-    /// Newton's method from the last input is safeguarded by that bracket (bisection when a
-    /// step leaves it or fails to halve the residual); at most 200 evaluations, never a panic.
-    /// The residual reached is about 1e-14 (|b| + Js + J_r) unless the bracket collapses to
-    /// adjacent floating-point numbers first. A non-finite `b` gives NaN; for |b| beyond about
-    /// 1e302 T the result overflows to infinity.
-    pub fn field_strength(&self, history: &History, b: f64) -> (f64, f64) {
+    /// Newton's method is safeguarded by that bracket: a step that leaves it, or that is not
+    /// shorter than half the step before last, is replaced by bisection, so the bracket at
+    /// least halves every two evaluations. At most 200 evaluations, never a panic. The residual reached is about
+    /// 1e-14 (|b| + Js + J_r) unless the bracket collapses to adjacent floating-point numbers
+    /// first. A non-finite `b` gives NaN; for |b| beyond about 1e302 T the result overflows to
+    /// infinity.
+    pub fn field_strength_near(&self, history: &History, b: f64, guess: f64) -> (f64, f64) {
         if !b.is_finite() {
             return (f64::NAN, f64::NAN);
         }
@@ -839,9 +847,15 @@ impl HysteresisLaw {
             return (b / MU_0, 1.0 / MU_0);
         }
         let tolerance = 1e-14 * (b.abs() + span);
-        let mut h = history.last_input.clamp(lo, hi);
+        let mut h = if guess.is_finite() {
+            guess.clamp(lo, hi)
+        } else {
+            history.last_input.clamp(lo, hi)
+        };
         let mut best = (h, 1.0 / MU_0, f64::INFINITY);
-        let mut previous_residual = f64::INFINITY;
+        // the step before last, for the safeguard: a Newton step must be less than half of it
+        let mut step_before = hi - lo;
+        let mut step = step_before;
         for _ in 0..200 {
             let (bh, slope) = self.flux_density(history, h);
             let r = bh - b;
@@ -856,15 +870,20 @@ impl HysteresisLaw {
             } else {
                 lo = h;
             }
-            if hi - lo <= 2.0 * f64::EPSILON * lo.abs().max(hi.abs()) {
+            if hi - lo <= 4.0 * f64::EPSILON * lo.abs().max(hi.abs()).max(1.0) {
                 break;
             }
-            let mut next = h - r / slope;
-            if !(next > lo && next < hi) || r.abs() > 0.5 * previous_residual {
-                next = 0.5 * (lo + hi);
+            let newton = r / slope;
+            let next = h - newton;
+            if next > lo && next < hi && 2.0 * newton.abs() <= step_before.abs() {
+                step_before = step;
+                step = newton;
+                h = next;
+            } else {
+                step_before = step;
+                step = 0.5 * (hi - lo);
+                h = lo + step;
             }
-            previous_residual = r.abs();
-            h = next;
         }
         (best.0, best.1)
     }

@@ -452,6 +452,15 @@ fn field_strength_inverts_flux_density() {
                     );
                 }
             }
+            // A warm start (the solver's previous iterate) converges to the same answer.
+            for &b in &[-1.2, -0.3, 0.4, 1.1] {
+                let cold = law.field_strength(history, b).0;
+                let warm = law.field_strength_near(history, b, cold + 3e3).0;
+                let back = law.flux_density(history, warm).0;
+                assert!((back - b).abs() <= 1e-12 * b.abs().max(1.0));
+                let wild = law.field_strength_near(history, b, f64::NAN).0;
+                assert!((law.flux_density(history, wild).0 - b).abs() <= 1e-12);
+            }
             let (nan, _) = law.field_strength(history, f64::NAN);
             assert!(nan.is_nan());
             let (big, _) = law.field_strength(history, 1e308);
