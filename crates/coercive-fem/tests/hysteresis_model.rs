@@ -202,6 +202,37 @@ fn everett_vanishes_on_the_diagonal_and_its_density_is_positive() {
 }
 
 #[test]
+fn sigmoid_inverse_and_values() {
+    // erf values: Abramowitz & Stegun, Table 7.1 (erf 0.5 = 0.5204998778, erf 1 =
+    // 0.8427007929, erf 2 = 0.9953222650); tanh from the standard library.
+    let erf = Sigmoid::Erf;
+    for (z, expected) in [
+        (0.5, 0.5204998778),
+        (1.0, 0.8427007929),
+        (2.0, 0.9953222650),
+    ] {
+        assert!((erf.value(z) - expected).abs() < 1e-10);
+        assert!((erf.value(-z) + expected).abs() < 1e-10);
+    }
+    for sigmoid in [Sigmoid::Logistic, Sigmoid::Erf] {
+        for k in -99..=99 {
+            let y = k as f64 / 100.0;
+            let z = sigmoid.inverse(y);
+            assert!((sigmoid.value(z) - y).abs() < 1e-14, "{sigmoid:?} at {y}");
+        }
+        assert_eq!(sigmoid.inverse(1.0), f64::INFINITY);
+        assert!(sigmoid.inverse(1.5).is_nan());
+        // dS/dz against central differences
+        for k in -30..=30 {
+            let z = k as f64 * 0.1;
+            let d = 1e-5;
+            let fd = (sigmoid.value(z + d) - sigmoid.value(z - d)) / (2.0 * d);
+            assert!((sigmoid.slope(z) - fd).abs() < 1e-9);
+        }
+    }
+}
+
+#[test]
 fn major_branches_are_the_sigmoids_exactly() {
     // Module docs: descending Js S((H + Hc)/s), ascending Js S((H - Hc)/s).
     for law in laws() {
@@ -499,6 +530,7 @@ fn coenergy_matches_the_closed_form_on_the_major_loop() {
             assert!((mirrored - exact).abs() < 1e-9 * exact.abs());
         }
         assert_eq!(law.coenergy_density(&down, 0.0), 0.0);
+        assert!(law.coenergy_density(&down, f64::NAN).is_nan());
     }
 }
 
