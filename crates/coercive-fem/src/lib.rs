@@ -22,7 +22,9 @@ mod state;
 pub use bh::{BhCurve, BhKnot, BhTable};
 pub use element::ElementOrder;
 pub use error::FemError;
-pub use hysteresis::{History, HysteresisLaw};
+pub use hysteresis::{
+    datasheet, datasheet_names, FittedLaw, History, HysteresisLaw, MagnetDatasheet, Sigmoid,
+};
 pub use linsolve::LinearSolverKind;
 pub use material::{
     HystereticMagnet, InitialMagnetisation, LinearMagnet, MagnetDirection, Material, MaterialError,

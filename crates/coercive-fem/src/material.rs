@@ -307,6 +307,32 @@ pub enum MaterialError {
         /// The names the library knows.
         known: Vec<String>,
     },
+    /// A hysteresis history (flat slots or serialised form) that breaks its invariants.
+    #[error("hysteresis history slot {slot} = {value}: {reason}")]
+    InvalidHistory {
+        /// Index of the offending slot in the flat layout of `History::SLOTS` (0: initial
+        /// saturation, 1: last input, 2: extremum count, 3 + k: extremum k).
+        slot: usize,
+        /// The value found there.
+        value: f64,
+        /// What is wrong.
+        reason: &'static str,
+    },
+    /// Magnet datasheet numbers that contradict each other or cannot be met by the
+    /// hysteresis model's loop shape.
+    #[error("magnet datasheet {grade}: {quantity} = {value} {reason} (limit {bound})")]
+    InconsistentDatasheet {
+        /// The grade's name.
+        grade: String,
+        /// The quantity at fault, with its unit.
+        quantity: &'static str,
+        /// The value given.
+        value: f64,
+        /// The limit it breaks (same unit).
+        bound: f64,
+        /// Why it is rejected.
+        reason: &'static str,
+    },
 }
 
 impl MagnetDirection {
