@@ -13,8 +13,8 @@ use std::fmt;
 use std::path::{Path, PathBuf};
 
 use coercive_fem::{
-    library, BhCurve, LinearMagnet, MagnetDirection, Material, MaterialError, OpenBoundary, Sense,
-    SoftMagnetic, Winding,
+    library, BhCurve, HystereticMagnet, InitialMagnetisation, LinearMagnet, MagnetDirection,
+    Material, MaterialError, OpenBoundary, Sense, SoftMagnetic, Winding,
 };
 use coercive_mesh::{
     CurveId, CurveShape, Geometry, GeometryPoint, GeometryRegion, Mesh, MeshError, MeshSettings,
@@ -510,6 +510,8 @@ struct RawMaterial {
     brauer: Option<Spanned<RawBrauer>>,
     #[serde(default)]
     remanence: Option<Spanned<f64>>,
+    #[serde(default)]
+    hysteresis: Option<Spanned<String>>,
     // Modifiers.
     #[serde(default)]
     stacking_factor: Option<Spanned<f64>>,
@@ -525,6 +527,8 @@ struct RawMaterial {
     parallel_centre: Option<Spanned<[f64; 2]>>,
     #[serde(default)]
     outward: Option<Spanned<bool>>,
+    #[serde(default)]
+    initial: Option<Spanned<String>>,
 }
 
 #[derive(Deserialize)]
@@ -562,6 +566,7 @@ enum RawLaw<'a> {
     Saturating(&'a Spanned<RawSaturating>),
     Brauer(&'a Spanned<RawBrauer>),
     Magnet(&'a Spanned<f64>),
+    Hysteretic(&'a Spanned<String>),
 }
 
 impl RawMaterial {
@@ -589,6 +594,9 @@ impl RawMaterial {
         }
         if let (Some(v), None) = (&self.remanence, &self.preset) {
             laws.push(("remanence", v.span().start, RawLaw::Magnet(v)));
+        }
+        if let Some(v) = &self.hysteresis {
+            laws.push(("hysteresis", v.span().start, RawLaw::Hysteretic(v)));
         }
         laws.sort_by_key(|l| l.1);
         laws
@@ -1328,8 +1336,37 @@ impl Reader<'_> {
             }
             _ => None,
         };
-        let is_magnet =
-            matches!(law, RawLaw::Magnet(_)) || matches!(grade, Some(library::Grade::Magnet(_)));
+        let is_magnet = matches!(law, RawLaw::Magnet(_) | RawLaw::Hysteretic(_))
+            || matches!(grade, Some(library::Grade::Magnet(_)));
+        let hysteretic_sheet = match &law {
+            RawLaw::Hysteretic(name) => Some(
+                coercive_fem::datasheet(name.get_ref())
+                    .map_err(|e| material_error(name.span().start, e))?,
+            ),
+            _ => None,
+        };
+        if let Some(init) = &m.initial {
+            if hysteretic_sheet.is_none() {
+                return Err(fail(
+                    init.span().start,
+                    "`initial` applies to hysteretic magnets (`hysteresis = \"...\"`) only".into(),
+                ));
+            }
+        }
+        if let (Some(r), Some(_)) = (&m.remanence, &hysteretic_sheet) {
+            return Err(fail(
+                r.span().start,
+                "two material laws, `hysteresis` and `remanence`: give exactly one per entry"
+                    .into(),
+            ));
+        }
+        if let (Some(r), Some(_)) = (&m.recoil_permeability, &hysteretic_sheet) {
+            return Err(fail(
+                r.span().start,
+                "`recoil_permeability` of a hysteretic magnet comes from its datasheet preset"
+                    .into(),
+            ));
+        }
         let brauer_exact = matches!(&law, RawLaw::Brauer(b) if b.get_ref().exact);
         let is_curve = matches!(
             law,
@@ -1544,6 +1581,37 @@ impl Reader<'_> {
                     })
                 }
             }
+            RawLaw::Hysteretic(name) => {
+                let sheet = hysteretic_sheet
+                    .as_ref()
+                    .expect("a hysteresis law reads its sheet above");
+                let fitted = coercive_fem::HysteresisLaw::fit(sheet)
+                    .map_err(|e| material_error(name.span().start, e))?;
+                let initial = match m.initial.as_ref().map(|i| i.get_ref().as_str()) {
+                    None | Some("forward") => InitialMagnetisation::Forward,
+                    Some("reverse") => InitialMagnetisation::Reverse,
+                    Some(other) => {
+                        let at = m.initial.as_ref().map_or(0, |i| i.span().start);
+                        return Err(fail(
+                            at,
+                            format!("`initial` is \"forward\" or \"reverse\", got \"{other}\""),
+                        ));
+                    }
+                };
+                Material::Hysteretic(HystereticMagnet {
+                    law: fitted.law,
+                    perpendicular_permeability: perpendicular.unwrap_or(sheet.recoil_permeability),
+                    direction: direction.ok_or_else(|| {
+                        fail(
+                            name.span().start,
+                            "a magnet needs `direction_deg`, `radial_centre` or \
+                             `parallel_centre`"
+                                .into(),
+                        )
+                    })?,
+                    initial,
+                })
+            }
             RawLaw::Magnet(br) => {
                 let recoil = recoil.ok_or_else(|| {
                     fail(
@@ -1571,7 +1639,7 @@ impl Reader<'_> {
             .validate()
             .map_err(|e| material_error(law_offset, e))?;
         Ok(CaseMaterial {
-            resistivity_ohm_m: None,
+            resistivity_ohm_m: hysteretic_sheet.map(|s| s.resistivity),
             name: name.to_string(),
             material,
             position: self.pos(&m.name),

@@ -39,6 +39,9 @@ struct SolveArgs {
     /// Print the summary as JSON (SI units; energies in J/m for planar cases, J otherwise).
     #[arg(long)]
     json: bool,
+    /// Write the tables (CSV, JSON) and charts (SVG) of the case's studies into this folder.
+    #[arg(long, value_name = "DIR")]
+    out: Option<PathBuf>,
 }
 
 /// Arguments of `coercive mesh`.
@@ -113,6 +116,19 @@ fn run_solve(args: &SolveArgs) -> Result<(), String> {
                 obj.insert("cautions".into(), CAUTIONS.join(" ").into());
             }
         }
+        if case.switching().is_some() {
+            let report = run_switching(&case, args)?;
+            if let Some(obj) = value.as_object_mut() {
+                obj.insert(
+                    "switching".into(),
+                    serde_json::to_value(&report).expect("a report serialises"),
+                );
+                obj.insert(
+                    "switching_cautions".into(),
+                    coercive::switching::SWITCHING_CAUTIONS.join(" ").into(),
+                );
+            }
+        }
         say!(
             "{}",
             serde_json::to_string_pretty(&value).expect("JSON values serialise")
@@ -131,8 +147,28 @@ fn run_solve(args: &SolveArgs) -> Result<(), String> {
             say!();
             say!("{sweep}");
         }
+        if case.switching().is_some() {
+            let report = run_switching(&case, args)?;
+            say!();
+            say!("{report}");
+        }
     }
     Ok(())
+}
+
+/// Runs the case's `[switching]` study and writes its files when `--out` is given.
+fn run_switching(
+    case: &Case,
+    args: &SolveArgs,
+) -> Result<coercive::switching::SwitchingReport, String> {
+    let name = args.case.display();
+    let report = coercive::switching::run_case(case).map_err(|e| format!("{name}: {e}"))?;
+    if let Some(dir) = &args.out {
+        let title = case.title().unwrap_or("switching study");
+        let files = coercive::switching::write_outputs(&report, dir, title)?;
+        eprintln!("wrote {} files to {}", files.len(), dir.display());
+    }
+    Ok(report)
 }
 
 /// The magnet-safety cautions printed with every force sweep.

@@ -770,3 +770,226 @@ pub fn run_case(case: &crate::case::Case) -> Result<SwitchingReport, StudyError>
     };
     switching_study(&rigid, &setup, &settings, build)
 }
+
+/// Holding force (N): the attraction of the workpiece towards the device, positive (the
+/// sweep reports the force on the workpiece along the direction that closes the gap, so the
+/// attraction is its opposite). The one sign convention of every switching output.
+pub fn holding_force_n(point: &ForcePoint) -> f64 {
+    -point.eggshell_n
+}
+
+/// The magnet-safety cautions printed once with every switching report.
+pub const SWITCHING_CAUTIONS: [&str; 6] = [
+    "Safety (switchable magnets):",
+    "  - Pinch hazard: an ON pad snaps onto steel with the forces below; keep fingers out of the gap, handle magnets with tools, never rely on the OFF state alone to keep a load from falling.",
+    "  - Strong fields affect pacemakers, implanted defibrillators and other implants; keep the makers' safety distances.",
+    "  - The switching pulse comes from a charged capacitor bank that stores lethal energy: discharge and short it before touching the circuit; follow electrical safety codes.",
+    "  - Lifting and work-holding: rate the device on the measured breakaway force with the safety factor that the local lifting-equipment standards require; computed forces are ideal values for clean, flat, thick steel.",
+    "  - This is a design aid; it does not replace testing, local codes or licensed engineering practice.",
+];
+
+impl std::fmt::Display for SwitchingReport {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        for line in SWITCHING_CAUTIONS {
+            writeln!(f, "{line}")?;
+        }
+        writeln!(f)?;
+        writeln!(
+            f,
+            "Switching pulses (workpiece in place; holding force = attraction of the workpiece, N):"
+        )?;
+        for t in [&self.on_to_off, &self.off_to_on] {
+            let r = &t.recommended;
+            writeln!(
+                f,
+                "  {:<10} threshold {:>9.0} A-turns; recommended {:>9.0} A-turns: {:.3} J \
+                 supplied, switched magnet J = {:+.3} T, peak |H| {:.0} kA/m; guarded magnet \
+                 margin to its knee {:.2} ({:.2} % of its volume beyond), J = {:+.3} T",
+                t.direction,
+                t.ampere_turns,
+                r.ampere_turns,
+                r.supplied_energy_j,
+                r.switched_polarisation_t,
+                r.peak_switched_field_a_per_m * 1e-3,
+                r.guarded_knee_margin,
+                100.0 * r.guarded_beyond_knee_fraction,
+                r.guarded_polarisation_t,
+            )?;
+        }
+        for (label, o) in [
+            ("ON to OFF", &self.removed[0]),
+            ("OFF to ON", &self.removed[1]),
+        ] {
+            writeln!(
+                f,
+                "  {label:<10} with the workpiece removed: switched magnet J = {:+.3} T, {:.3} J \
+                 supplied",
+                o.switched_polarisation_t, o.supplied_energy_j
+            )?;
+        }
+        writeln!(f)?;
+        writeln!(
+            f,
+            "{:>9} {:>12} {:>9} {:>12} {:>9}",
+            "gap", "ON force", "spread", "OFF force", "spread"
+        )?;
+        writeln!(
+            f,
+            "{:>9} {:>12} {:>9} {:>12} {:>9}",
+            "(mm)", "(N)", "(%)", "(N)", "(%)"
+        )?;
+        for (on, off) in self.force_on.iter().zip(&self.force_off) {
+            writeln!(
+                f,
+                "{:>9.3} {:>12.2} {:>9.2} {:>12.2} {:>9.2}{}",
+                on.point.parameter * 1e3,
+                holding_force_n(on),
+                100.0 * on.spread,
+                holding_force_n(off),
+                100.0 * off.spread,
+                if on.warning || off.warning {
+                    "  <- methods disagree"
+                } else {
+                    ""
+                }
+            )?;
+        }
+        writeln!(
+            f,
+            "After pulses with the workpiece removed (then brought back): ON {:.2} N, OFF {:.2} N \
+             at {:.3} mm",
+            holding_force_n(&self.force_removed[0]),
+            holding_force_n(&self.force_removed[1]),
+            self.force_removed[0].point.parameter * 1e3
+        )?;
+        writeln!(f)?;
+        writeln!(
+            f,
+            "Partial switching (OFF pulses of growing amplitude from ON):"
+        )?;
+        writeln!(
+            f,
+            "{:>14} {:>14} {:>12}",
+            "pulse (A-turns)", "switched (%)", "force (N)"
+        )?;
+        for p in &self.partial {
+            writeln!(
+                f,
+                "{:>14.0} {:>14.1} {:>12.2}",
+                p.outcome.ampere_turns,
+                100.0 * p.switched_fraction,
+                holding_force_n(&p.force)
+            )?;
+        }
+        writeln!(f)?;
+        write!(f, "{}", self.eddy_current_note)
+    }
+}
+
+/// Writes the report into `dir`: `switching.json` (everything), `switching_force.csv`
+/// (ON and OFF force versus gap), `switching_partial.csv` (force versus pulse), and the
+/// charts `switching_force.svg` and `switching_partial.svg`. Returns the files written.
+///
+/// # Errors
+/// I/O errors and chart errors, as text naming the file.
+pub fn write_outputs(
+    report: &SwitchingReport,
+    dir: &std::path::Path,
+    title: &str,
+) -> Result<Vec<std::path::PathBuf>, String> {
+    use coercive_post::plot::{xy_chart_svg, ChartOptions, Series, Table};
+    std::fs::create_dir_all(dir).map_err(|e| format!("{}: {e}", dir.display()))?;
+    let mut written = Vec::new();
+    let mut write = |name: &str, text: String| -> Result<(), String> {
+        let path = dir.join(name);
+        std::fs::write(&path, text).map_err(|e| format!("{}: {e}", path.display()))?;
+        written.push(path);
+        Ok(())
+    };
+    write(
+        "switching.json",
+        serde_json::to_string_pretty(report).map_err(|e| e.to_string())?,
+    )?;
+    let mut forces = Table::new(vec![
+        "gap (mm)".into(),
+        "ON holding force (N)".into(),
+        "ON spread (%)".into(),
+        "OFF holding force (N)".into(),
+        "OFF spread (%)".into(),
+    ]);
+    for (on, off) in report.force_on.iter().zip(&report.force_off) {
+        forces
+            .push(vec![
+                on.point.parameter * 1e3,
+                holding_force_n(on),
+                100.0 * on.spread,
+                holding_force_n(off),
+                100.0 * off.spread,
+            ])
+            .map_err(|e| e.to_string())?;
+    }
+    write("switching_force.csv", forces.to_csv())?;
+    let mut partial = Table::new(vec![
+        "pulse (A-turns)".into(),
+        "switched fraction (%)".into(),
+        "holding force (N)".into(),
+        "supplied energy (J)".into(),
+    ]);
+    for p in &report.partial {
+        partial
+            .push(vec![
+                p.outcome.ampere_turns.abs(),
+                100.0 * p.switched_fraction,
+                holding_force_n(&p.force),
+                p.outcome.supplied_energy_j,
+            ])
+            .map_err(|e| e.to_string())?;
+    }
+    write("switching_partial.csv", partial.to_csv())?;
+    let curve = |label: &str, rows: &[ForcePoint]| {
+        Series::new(
+            label,
+            rows.iter()
+                .map(|r| (r.point.parameter * 1e3, holding_force_n(r)))
+                .collect(),
+        )
+    };
+    let chart = xy_chart_svg(
+        &[
+            curve("ON", &report.force_on),
+            curve("OFF", &report.force_off),
+        ],
+        &ChartOptions {
+            title: format!("{title}: holding force versus gap, ON and OFF"),
+            x_label: "gap (mm)".into(),
+            y_label: "holding force (N)".into(),
+            include_zero_y: true,
+            ..ChartOptions::default()
+        },
+    )
+    .map_err(|e| e.to_string())?;
+    write("switching_force.svg", chart)?;
+    let chart = xy_chart_svg(
+        &[Series::new(
+            "after an OFF pulse from ON",
+            report
+                .partial
+                .iter()
+                .map(|p| (p.outcome.ampere_turns.abs(), holding_force_n(&p.force)))
+                .collect(),
+        )],
+        &ChartOptions {
+            title: format!(
+                "{title}: holding force at {:.3} mm after a pulse (partial switching)",
+                report.force_removed[0].point.parameter * 1e3
+            ),
+            x_label: "pulse (A-turns)".into(),
+            y_label: "holding force (N)".into(),
+            include_zero_y: true,
+            ..ChartOptions::default()
+        },
+    )
+    .map_err(|e| e.to_string())?;
+    write("switching_partial.svg", chart)?;
+    Ok(written)
+}

@@ -1,0 +1,138 @@
+//! The switching study on the switchable pad of `meshes/switchable_pad.toml` (a scenario of
+//! our own), on a coarser mesh so that the whole study runs in seconds: trend checks of the
+//! design rules, not exact oracles.
+
+use coercive::case::Case;
+use coercive::fem::{HistorySettings, MagnetState, Pulse, Solver};
+use coercive::mesh::Placement;
+use coercive::post::FieldProbe;
+use coercive::switching::{holding_force_n, run_case};
+
+/// The pad case with a coarser mesh, first-order elements, fewer gaps and a looser
+/// threshold tolerance (every setting through the case file, the one reader).
+fn coarse_pad() -> Case {
+    let text = include_str!("../meshes/switchable_pad.toml")
+        .replace("element_order = 2", "element_order = 1")
+        .replace("max_size = 1.5", "max_size = 3.0")
+        .replace("max_size = 2.0", "max_size = 4.0")
+        .replace(
+            "gaps = [0.05, 0.1, 0.2, 0.3, 0.5, 0.75, 1.0, 1.25, 1.5, 2.0, 2.5, 3.0]",
+            "gaps = [0.05, 1.0, 3.0]",
+        )
+        .replace("amplitude_tolerance = 0.01", "amplitude_tolerance = 0.04")
+        .replace("partial_amplitudes = 8", "partial_amplitudes = 6");
+    Case::from_toml_str(&text).unwrap()
+}
+
+fn polarisation(solution: &coercive::fem::Solution, region: &str) -> f64 {
+    FieldProbe::new(solution)
+        .magnet_working_points()
+        .rows
+        .into_iter()
+        .find(|r| r.region == region)
+        .unwrap()
+        .mean_polarisation_t
+}
+
+#[test]
+fn the_pad_switches_off_and_on_and_holds_only_when_on() {
+    let case = coarse_pad();
+    let report = run_case(&case).unwrap();
+    eprintln!("{report}");
+    let on = holding_force_n(&report.force_on[0]);
+    let off = holding_force_n(&report.force_off[0]);
+    // ON holds far more than OFF (common practice: OFF leaves a few percent of the ON force).
+    assert!(on > 10.0 * off.abs(), "ON {on} N, OFF {off} N");
+    assert!(on > 100.0);
+    // Both ways need a pulse; OFF reverses the AlNiCo, ON restores it.
+    let (t_off, t_on) = (&report.on_to_off, &report.off_to_on);
+    assert!(t_off.ampere_turns < 0.0 && t_on.ampere_turns > 0.0);
+    assert!(t_off.recommended.switched_polarisation_t < 0.0);
+    assert!(t_on.recommended.switched_polarisation_t > 0.0);
+    // The guarded NdFeB stays above its knee for the recommended pulses, and keeps its
+    // magnetisation within 1 % (common practice: a switching pulse changes the NdFeB's
+    // magnetisation by less than 1 %).
+    for t in [t_off, t_on] {
+        let r = &t.recommended;
+        assert!(r.guarded_knee_margin > 0.0, "{}", r.guarded_knee_margin);
+        assert_eq!(r.guarded_beyond_knee_fraction, 0.0);
+        assert!(r.supplied_energy_j > 0.0);
+    }
+    let n42 = coercive::fem::datasheet("ndfeb-n42").unwrap().remanence;
+    let change =
+        (t_off.recommended.guarded_polarisation_t - t_on.recommended.guarded_polarisation_t).abs();
+    assert!(
+        change < 0.01 * n42,
+        "NdFeB polarisation changed by {change} T"
+    );
+    // A pulse a quarter of the threshold leaves the state nearly unchanged; the partial
+    // curve falls monotonically from ON towards OFF.
+    let first = &report.partial[0];
+    assert!(
+        (first.amplitude_a.abs() - 0.25 * t_off.amplitude_a.abs()).abs() < 1e-9,
+        "{}",
+        first.amplitude_a
+    );
+    assert!(
+        first.switched_fraction < 0.02,
+        "{}",
+        first.switched_fraction
+    );
+    let forces: Vec<f64> = report
+        .partial
+        .iter()
+        .map(|p| holding_force_n(&p.force))
+        .collect();
+    assert!(
+        forces.windows(2).all(|w| w[1] <= w[0] * 1.001),
+        "{forces:?}"
+    );
+    // The force spread stays small at every gap.
+    for p in report.force_on.iter().chain(&report.force_off) {
+        assert!(!p.warning, "{}: spread {}", p.point.label, p.spread);
+    }
+    assert!(report.eddy_current_note.contains("skin depth"));
+}
+
+#[test]
+fn an_off_on_off_cycle_returns_to_the_same_off_state() {
+    let case = coarse_pad();
+    let sw = case.switching().unwrap();
+    let rigid = case.geometry().unwrap().prepare_rigid().unwrap();
+    let shift = sw.drawn_gap_m - sw.pulse_gap_m;
+    let mesh = rigid
+        .mesh_at(&[("pad", Placement::translation(0.0, shift))])
+        .unwrap();
+    let model = coercive::solve::study_model(&case, mesh).unwrap();
+    let solver = Solver::new(&model).unwrap();
+    let settings = HistorySettings::default();
+    let off = Pulse::single("coil", -60.0);
+    let on = Pulse::single("coil", 60.0);
+    let start = MagnetState::initial(&model);
+    let a = solver
+        .solve_history(&model, &start, &off, &settings)
+        .unwrap();
+    let b = solver
+        .solve_history(&model, &a.state, &on, &settings)
+        .unwrap();
+    let c = solver
+        .solve_history(&model, &b.state, &off, &settings)
+        .unwrap();
+    let j = |run: &coercive::fem::HistoryRun| {
+        polarisation(run.last_solution().unwrap(), "magnet_alnico")
+    };
+    let (ja, jb, jc) = (j(&a), j(&b), j(&c));
+    eprintln!("AlNiCo J: OFF {ja:.5} T, ON {jb:.5} T, OFF again {jc:.5} T");
+    assert!(ja < 0.0 && jb > 0.0);
+    // Wiping-out (Mayergoyz 1991): the second OFF pulse of the same amplitude erases the ON
+    // excursion, so the state returns to where the first OFF pulse left it.
+    assert!((ja - jc).abs() < 1e-6, "{ja} vs {jc}");
+    let pa = a.last_solution().unwrap().potential();
+    let pc = c.last_solution().unwrap().potential();
+    let scale = pa.iter().fold(0.0_f64, |m, x| m.max(x.abs()));
+    let diff = pa
+        .iter()
+        .zip(pc)
+        .fold(0.0_f64, |m, (x, y)| m.max((x - y).abs()));
+    assert!(diff < 1e-6 * scale, "{diff} vs {scale}");
+}
