@@ -1,5 +1,5 @@
-//! Degrees of freedom: node numbering for P1/P2, constraints (fixed potentials, periodic and
-//! anti-periodic links, the open boundary) and the numbering of the free equations.
+//! Degrees of freedom: node numbering for P1/P2, constraints (fixed and floating potentials,
+//! periodic and anti-periodic links, the open boundary) and the numbering of the free equations.
 //!
 //! Every node (degree of freedom) is either fixed (known value) or equal to `sign * x[eq]`
 //! for a free unknown `x[eq]`, `sign` being +1 or -1. Periodic links merge nodes into classes
@@ -161,6 +161,19 @@ impl Layout {
                 BoundaryCondition::Periodic { first, second } => (first, second, 1.0),
                 BoundaryCondition::AntiPeriodic { first, second } => (first, second, -1.0),
                 BoundaryCondition::Open(o) => (&o.circle, &o.exterior_boundary, 1.0),
+                BoundaryCondition::FloatingPotential { curve } => {
+                    // One class for every node of every curve of that name.
+                    let mut anchor: Option<usize> = None;
+                    for c in curves_named(mesh, "floating potential", curve)? {
+                        for d in self.curve_dofs(mesh, c) {
+                            match anchor {
+                                None => anchor = Some(d as usize),
+                                Some(a) => classes.link(a, d as usize, 1.0),
+                            }
+                        }
+                    }
+                    continue;
+                }
                 BoundaryCondition::FixedPotential { .. } => continue,
             };
             for (a, b) in matched_pairs(mesh, first, second)? {

@@ -190,6 +190,16 @@ pub enum BoundaryCondition {
     },
     /// Open boundary by the Kelvin transformation.
     Open(OpenBoundary),
+    /// Floating potential on every curve named `curve`: the potential takes one unknown
+    /// constant value along all of them, so no flux crosses them (as on a fixed potential),
+    /// but the value is not imposed. The weak form then holds the integral of the tangential
+    /// H along the curves at zero: the wall carries no net surface current, and the flux
+    /// between it and a fixed potential follows from the windings (a leakage-free magnetic
+    /// circuit between two flux walls is the usual use).
+    FloatingPotential {
+        /// Curve name.
+        curve: String,
+    },
 }
 
 /// Builder of a [`Model`]; every method records, [`ModelBuilder::build`] validates.
@@ -270,6 +280,16 @@ impl ModelBuilder {
             .push(BoundaryCondition::FixedPotential {
                 curve: curve.to_string(),
                 value: PotentialValue::Field(value),
+            });
+        self
+    }
+
+    /// Makes every curve named `curve` a floating potential: one unknown constant along all
+    /// of them (see [`BoundaryCondition::FloatingPotential`]).
+    pub fn floating_potential(mut self, curve: &str) -> Self {
+        self.boundary_conditions
+            .push(BoundaryCondition::FloatingPotential {
+                curve: curve.to_string(),
             });
         self
     }
@@ -449,6 +469,9 @@ impl ModelBuilder {
                     if let PotentialValue::Constant(v) = value {
                         finite(format!("fixed potential on curve `{curve}`"), *v)?;
                     }
+                }
+                BoundaryCondition::FloatingPotential { curve } => {
+                    curves_named(mesh, "floating potential", curve)?;
                 }
                 BoundaryCondition::Periodic { first, second }
                 | BoundaryCondition::AntiPeriodic { first, second } => {
