@@ -45,7 +45,7 @@
 //!
 //! # Sources
 //! - `[EN 10106]`: EN 10106, cold rolled non-oriented electrical steel sheet and strip
-//!   delivered in the fully processed state (grade designation M<loss>-<thickness>A; minimum
+//!   delivered in the fully processed state (grade designation `M<loss>-<thickness>A`; minimum
 //!   polarisation J at H = 2500, 5000 and 10000 A/m). The minima below are `from memory`: the
 //!   standard's table was not re-read.
 //! - `[voestalpine]`: typical J(H) curves of non-oriented electrical steel measured by the
