@@ -31,7 +31,7 @@ pub fn main() -> Result<(), Box<dyn std::error::Error>> {
     let current = 1000.0; // A
     let model = Model::builder(mesh, Formulation::Planar { depth_m: 1.0 })
         .order(ElementOrder::P2)
-        .material("ring", library::preset("steel-1010")?)
+        .material("ring", library::preset("steel-c10")?)
         .material("conductor", Material::vacuum())
         .material("gap", Material::vacuum())
         .material("air", Material::vacuum())

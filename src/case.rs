@@ -1675,16 +1675,27 @@ impl Reader<'_> {
         for (region, material) in region_materials {
             let Some(material) = material else { continue };
             let name = material.get_ref();
-            if !materials.iter().any(|m| &m.name == name) && library::grade(name).is_err() {
-                return Err(self.invalid(
-                    material,
-                    format!(
-                        "region `{}`: unknown material `{name}` (not a [[material]] name; \
-                         presets: {})",
-                        region.get_ref(),
-                        library::names().join(", ")
-                    ),
-                ));
+            if materials.iter().any(|m| &m.name == name) {
+                continue;
+            }
+            match library::grade(name) {
+                Ok(_) => {}
+                Err(e @ MaterialError::RetiredPreset { .. }) => {
+                    return Err(
+                        self.invalid(material, format!("region `{}`: {e}", region.get_ref()))
+                    )
+                }
+                Err(_) => {
+                    return Err(self.invalid(
+                        material,
+                        format!(
+                            "region `{}`: unknown material `{name}` (not a [[material]] name; \
+                             presets: {})",
+                            region.get_ref(),
+                            library::names().join(", ")
+                        ),
+                    ))
+                }
             }
         }
         let region_exists = |r: &str| geometry.regions.iter().any(|g| g.name == r && !g.hole);

@@ -5,6 +5,7 @@ pub use coercive_mesh as mesh;
 pub use coercive_post as post;
 
 pub mod case;
+pub mod materials;
 pub mod solve;
 pub mod study;
 pub mod switching;

@@ -1,7 +1,9 @@
 //! The `coercive` command-line runner.
 //!
 //! `coercive mesh CASE.toml [--svg FILE] [--json]` meshes a case's geometry and prints the
-//! quality report. Further subcommands (solving, studies) join the [`Command`] enum.
+//! quality report; `coercive solve CASE.toml` solves it; `coercive materials [--svg DIR]
+//! [--json]` lists the material presets with their sources and plots their curves. Further
+//! subcommands join the [`Command`] enum.
 
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -29,6 +31,21 @@ enum Command {
     /// and the peak |B| of each region; then run the case's `[sweep]`, if any (force on a
     /// body versus the position of a rigid group, by three methods).
     Solve(SolveArgs),
+    /// List the material presets with their key numbers and published sources; with `--svg`,
+    /// plot each soft material's B-H curve and each magnet's demagnetisation line.
+    Materials(MaterialsArgs),
+}
+
+/// Arguments of `coercive materials`.
+#[derive(Args)]
+struct MaterialsArgs {
+    /// Print the list as JSON (SI units: A/m, T, J/m^3).
+    #[arg(long)]
+    json: bool,
+    /// Write one SVG chart per preset, plus `soft-materials.svg` and `magnets.svg`, to this
+    /// directory (created if missing).
+    #[arg(long, value_name = "DIR")]
+    svg: Option<PathBuf>,
 }
 
 /// Arguments of `coercive solve`.
@@ -80,6 +97,7 @@ fn main() -> ExitCode {
     let result = match cli.command {
         Command::Mesh(args) => run_mesh(&args),
         Command::Solve(args) => run_solve(&args),
+        Command::Materials(args) => run_materials(&args),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
@@ -88,6 +106,31 @@ fn main() -> ExitCode {
             ExitCode::FAILURE
         }
     }
+}
+
+fn run_materials(args: &MaterialsArgs) -> Result<(), String> {
+    let list = coercive::materials::preset_list().map_err(|e| e.to_string())?;
+    if let Some(dir) = &args.svg {
+        std::fs::create_dir_all(dir)
+            .map_err(|e| format!("cannot create {}: {e}", dir.display()))?;
+        for (file, svg) in coercive::materials::preset_charts(&list).map_err(|e| e.to_string())? {
+            let path = dir.join(file);
+            std::fs::write(&path, svg)
+                .map_err(|e| format!("cannot write {}: {e}", path.display()))?;
+        }
+    }
+    if args.json {
+        say!(
+            "{}",
+            serde_json::to_string_pretty(&list).expect("the preset list serialises")
+        );
+    } else {
+        say!("{}", coercive::materials::preset_text(&list));
+        if let Some(dir) = &args.svg {
+            say!("charts: {}", dir.display());
+        }
+    }
+    Ok(())
 }
 
 fn run_solve(args: &SolveArgs) -> Result<(), String> {

@@ -485,7 +485,7 @@ mod tests {
         ))
         .unwrap()
         .replace(
-            "material = \"steel-1010\"",
+            "material = \"steel-c10\"",
             &format!("material = \"{steel}\""),
         );
         format!("{text}\n{extra}")

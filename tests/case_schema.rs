@@ -11,7 +11,7 @@ fn ring(sections: &str) -> String {
         "/meshes/steel_ring_conductor.toml"
     ))
     .unwrap()
-    .replace("material = \"steel-1010\"", "material = \"ring_steel\"");
+    .replace("material = \"steel-c10\"", "material = \"ring_steel\"");
     format!("{base}\n{sections}")
 }
 
@@ -134,7 +134,7 @@ fn two_laws_in_one_entry_name_both() {
     // `remanence` overrides a magnet preset but is a second law beside a steel preset.
     let text = ring(&GOOD.replace(
         "saturating = { js = 1.8, h0 = 200 }",
-        "preset = \"steel-1010\"\nremanence = 1.2",
+        "preset = \"steel-c10\"\nremanence = 1.2",
     ));
     expect_entry_error(
         &text,
@@ -142,7 +142,7 @@ fn two_laws_in_one_entry_name_both() {
         1,
         "ring_steel",
         "1.2\n",
-        &["two material laws", "preset `steel-1010`", "`remanence`"],
+        &["two material laws", "preset `steel-c10`", "`remanence`"],
     );
     let text = ring(&GOOD.replace(
         "saturating = { js = 1.8, h0 = 200 }",
@@ -192,15 +192,15 @@ fn no_law_and_a_modifier_of_another_law_are_errors() {
 fn unknown_preset_is_located_at_its_value() {
     let text = ring(&GOOD.replace(
         "saturating = { js = 1.8, h0 = 200 }",
-        "preset = \"steel-1011\"",
+        "preset = \"steel-c11\"",
     ));
     expect_entry_error(
         &text,
         "material",
         1,
         "ring_steel",
-        "\"steel-1011\"",
-        &["unknown material preset", "steel-1010"],
+        "\"steel-c11\"",
+        &["unknown material preset", "steel-c10"],
     );
 }
 
@@ -300,6 +300,34 @@ fn unknown_region_material_is_located_in_the_region() {
     let p = where_is(&text, "\"unobtainium\"");
     assert!(
         message.contains(&format!("line {}, column {}", p.line, p.column)),
+        "{message}"
+    );
+}
+
+#[test]
+fn retired_preset_names_say_what_to_write_instead() {
+    // A `[[material]]` preset of the earlier library.
+    let text = ring(&GOOD.replace("saturating = { js = 1.8, h0 = 200 }", "preset = \"m-19\""));
+    expect_entry_error(
+        &text,
+        "material",
+        1,
+        "ring_steel",
+        "\"m-19\"",
+        &["`m-19` is not a preset", "EN 10106", "m400-50a"],
+    );
+    // A region's material naming a retired preset directly.
+    let base = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/meshes/steel_ring_conductor.toml"
+    ))
+    .unwrap()
+    .replace("material = \"steel-c10\"", "material = \"steel-1010\"");
+    let message = Case::from_toml_str(&base).unwrap_err().to_string();
+    assert!(
+        message.contains("region `ring`")
+            && message
+                .contains("`steel-1010` is not a preset; for a low carbon steel write `steel-c10`"),
         "{message}"
     );
 }

@@ -8,7 +8,7 @@ fn ring_case(dir: &std::path::Path, boundary_curve: &str) -> std::path::PathBuf 
         "/meshes/steel_ring_conductor.toml"
     ))
     .unwrap()
-    .replace("material = \"steel-1010\"", "material = \"ring_steel\"");
+    .replace("material = \"steel-c10\"", "material = \"ring_steel\"");
     let path = dir.join(format!("ring_{boundary_curve}.toml"));
     std::fs::write(
         &path,

@@ -198,7 +198,8 @@ pub enum Material {
     Hysteretic(HystereticMagnet),
 }
 
-/// Invalid material data: B-H points, law parameters, magnet values or an unknown preset.
+/// Invalid material data: B-H points, law parameters, magnet values or an unknown or retired
+/// preset.
 ///
 /// Point indices are 0-based positions in the slice given by the caller.
 #[derive(Clone, Debug, PartialEq, Error)]
@@ -332,6 +333,14 @@ pub enum MaterialError {
         bound: f64,
         /// Why it is rejected.
         reason: &'static str,
+    },
+    /// A preset name of an earlier library, no longer accepted.
+    #[error("`{name}` is not a preset; {instead}")]
+    RetiredPreset {
+        /// The name asked for.
+        name: String,
+        /// What to write instead.
+        instead: String,
     },
 }
 
