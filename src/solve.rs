@@ -168,6 +168,9 @@ pub struct SolveSummary {
     pub energy_unit: &'static str,
     /// Peak |B| (T) per region, in mesh order.
     pub peak_flux_density_t: Vec<(String, f64)>,
+    /// Magnets driven beyond their knee (linear models outside their validity), each with
+    /// the volume fraction concerned.
+    pub magnet_warnings: Vec<String>,
     /// Wall-clock times (s): set-up (layout, pattern, ordering), assembly, factorisation,
     /// triangular solves.
     pub setup_s: f64,
@@ -213,12 +216,53 @@ pub fn solve_and_summarise(
             .zip(sol.region_peak_flux_densities())
             .map(|(r, b)| (r.name.clone(), *b))
             .collect(),
+        magnet_warnings: knee_warnings(&sol),
         setup_s,
         assembly_s: report.times.assembly_s,
         factorisation_s: report.times.factorisation_s,
         solve_s: report.times.solve_s,
     };
     Ok((sol, summary))
+}
+
+/// Volume fraction of a linear magnet beyond its knee above which a result says so.
+pub const KNEE_WARNING_FRACTION: f64 = 1e-3;
+
+/// The warnings of a solution's linear magnets driven beyond their knee (the linear recoil
+/// model is invalid there: the real magnet would lose remanence), with the volume fraction
+/// as the measure of how far, and of hysteretic magnets partly past their knee (modelled).
+pub fn knee_warnings(solution: &coercive_fem::Solution) -> Vec<String> {
+    coercive_post::FieldProbe::new(solution)
+        .magnet_working_points()
+        .rows
+        .into_iter()
+        .filter(|r| r.beyond_knee_fraction > KNEE_WARNING_FRACTION)
+        .map(|r| {
+            let knee = r.knee_field_a_per_m.unwrap_or(f64::NAN);
+            if r.hysteretic {
+                format!(
+                    "magnet `{}`: {:.1} % of its volume is beyond its knee (H along the easy \
+                     axis below -{:.0} kA/m, down to {:.0} kA/m): it loses remanence there \
+                     (modelled by its hysteresis law)",
+                    r.region,
+                    100.0 * r.beyond_knee_fraction,
+                    knee * 1e-3,
+                    r.min_field_strength_a_per_m * 1e-3
+                )
+            } else {
+                format!(
+                    "WARNING magnet `{}`: {:.1} % of its volume is beyond its knee (H along the \
+                     easy axis below -{:.0} kA/m, down to {:.0} kA/m), where its linear recoil \
+                     model does not hold: the real magnet would lose remanence and the results \
+                     overstate its flux; use `hysteresis = ...` for this magnet",
+                    r.region,
+                    100.0 * r.beyond_knee_fraction,
+                    knee * 1e-3,
+                    r.min_field_strength_a_per_m * 1e-3
+                )
+            }
+        })
+        .collect()
 }
 
 /// One row of a case's `[sweep]`: the force on the body along the sweep direction by three
@@ -464,6 +508,9 @@ impl std::fmt::Display for SolveSummary {
         writeln!(f, "peak |B| per region:")?;
         for (name, b) in &self.peak_flux_density_t {
             writeln!(f, "  {name:<20} {b:.4} T")?;
+        }
+        for w in &self.magnet_warnings {
+            writeln!(f, "{w}")?;
         }
         write!(
             f,

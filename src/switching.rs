@@ -190,6 +190,9 @@ pub struct SwitchingReport {
     pub eddy_current_note: String,
 }
 
+/// The load-step size (fraction of the peak current) of the threshold search's pulses.
+const SEARCH_STEP: f64 = 0.25;
+
 fn invalid(what: &str, reason: String) -> StudyError {
     StudyError::Invalid {
         what: what.into(),
@@ -262,9 +265,38 @@ where
         amplitude_a: f64,
         workpiece: Workpiece,
     ) -> Result<PulseOutcome, StudyError> {
+        self.pulse_with(
+            state,
+            amplitude_a,
+            workpiece,
+            self.settings.history.max_step,
+        )
+    }
+
+    /// A pulse of the threshold search: only the state it leaves matters (a rate-independent
+    /// law sees the peak whatever the steps between), so its ramps take steps of at least a
+    /// quarter of the peak; the reported pulses keep the finer steps of the settings, which
+    /// the supplied energy (a trapezoidal sum) needs.
+    fn search_pulse(
+        &self,
+        state: &MagnetState,
+        amplitude_a: f64,
+    ) -> Result<PulseOutcome, StudyError> {
+        let step = self.settings.history.max_step.max(SEARCH_STEP);
+        self.pulse_with(state, amplitude_a, Workpiece::Present, step)
+    }
+
+    fn pulse_with(
+        &self,
+        state: &MagnetState,
+        amplitude_a: f64,
+        workpiece: Workpiece,
+        max_step: f64,
+    ) -> Result<PulseOutcome, StudyError> {
         let label = format!("pulse of {amplitude_a:.4} A");
         let settings = HistorySettings {
             keep: KeepSolutions::Waypoints,
+            max_step,
             ..self.settings.history
         };
         let run = self
@@ -344,8 +376,8 @@ where
         while (hi - lo) > s.amplitude_tolerance * hi {
             let (m1, m2) = (lo + (hi - lo) / 3.0, lo + 2.0 * (hi - lo) / 3.0);
             let (o1, o2) = rayon::join(
-                || self.pulse(start, sign * m1, Workpiece::Present),
-                || self.pulse(start, sign * m2, Workpiece::Present),
+                || self.search_pulse(start, sign * m1),
+                || self.search_pulse(start, sign * m2),
             );
             let (f1, f2) = (fraction(&o1?), fraction(&o2?));
             evaluations.push((sign * m1, f1));
@@ -503,7 +535,7 @@ where
     let off = setup.off_current_sign;
     let full = settings.full_pulse_a.abs();
     let magnetised = MagnetState::initial(&ctx.present);
-    let first_off = ctx.pulse(&magnetised, off * full, Workpiece::Present)?;
+    let first_off = ctx.search_pulse(&magnetised, off * full)?;
     if first_off.switched_polarisation_t >= 0.0 {
         return Err(invalid(
             "off_current_sign",
@@ -522,12 +554,12 @@ where
         .state
         .clone()
         .unwrap_or_else(|| magnetised.clone());
-    let on_full_outcome = ctx.pulse(&off_full, -off * full, Workpiece::Present)?;
+    let on_full_outcome = ctx.search_pulse(&off_full, -off * full)?;
     let on_full = on_full_outcome
         .state
         .clone()
         .unwrap_or_else(|| magnetised.clone());
-    let off_full_outcome = ctx.pulse(&on_full, off * full, Workpiece::Present)?;
+    let off_full_outcome = ctx.search_pulse(&on_full, off * full)?;
     // The thresholds (sequential bisections, each pulse from the same committed state).
     let on_to_off = ctx.threshold(
         "ON to OFF",

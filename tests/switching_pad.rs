@@ -136,3 +136,51 @@ fn an_off_on_off_cycle_returns_to_the_same_off_state() {
         .fold(0.0_f64, |m, (x, y)| m.max((x - y).abs()));
     assert!(diff < 1e-6 * scale, "{diff} vs {scale}");
 }
+
+#[test]
+fn a_linear_alnico_past_its_knee_is_reported_with_its_volume_fraction() {
+    // The pad with both magnets as linear recoil presets and the plate 3 mm away: the AlNiCo
+    // works far down its demagnetisation curve (its HcB is about 50 kA/m), where the linear
+    // model overstates its flux; the summary must say so, with the fraction of its volume.
+    let text = include_str!("../meshes/switchable_pad.toml")
+        .replace("hysteresis = \"alnico-5\"", "preset = \"alnico-5\"")
+        .replace("hysteresis = \"ndfeb-n42\"", "preset = \"ndfeb-n42\"")
+        .replace("min = [-35, 30.5]", "min = [-35, 33.0]")
+        .replace("max = [35, 40.5]", "max = [35, 43.0]")
+        .replace("element_order = 2", "element_order = 1");
+    let text = &text[..text.find("[switching]").unwrap()];
+    let case = Case::from_toml_str(text).unwrap();
+    let geometry = case.geometry().unwrap();
+    let (mesh, _) = case.mesh_with_report(&geometry).unwrap();
+    let model = coercive::solve::model_from_case(&case, mesh).unwrap();
+    let (solution, summary) = coercive::solve::solve_and_summarise(&model).unwrap();
+    eprintln!("{summary}");
+    let alnico = summary
+        .magnet_warnings
+        .iter()
+        .find(|w| w.contains("magnet_alnico"))
+        .expect("a warning for the AlNiCo");
+    assert!(alnico.starts_with("WARNING") && alnico.contains("% of its volume"));
+    assert!(
+        !summary
+            .magnet_warnings
+            .iter()
+            .any(|w| w.contains("magnet_ndfeb")),
+        "the NdFeB stays above its knee"
+    );
+    let row = FieldProbe::new(&solution)
+        .magnet_working_points()
+        .rows
+        .into_iter()
+        .find(|r| r.region == "magnet_alnico")
+        .unwrap();
+    // The knee of AlNiCo 5 from its fitted loop (J = 0.9 Br), between HcB/2 and HcB.
+    let knee = row.knee_field_a_per_m.unwrap();
+    assert!(knee > 25e3 && knee < 50.3e3, "{knee}");
+    assert!(
+        row.beyond_knee_fraction > 0.5,
+        "{}",
+        row.beyond_knee_fraction
+    );
+    assert!(!row.hysteretic);
+}

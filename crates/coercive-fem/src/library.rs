@@ -146,8 +146,14 @@ impl MagnetGrade {
                 });
             }
         }
+        // The knee of the grade's major loop, from the hysteresis model fitted to the same
+        // grade's datasheet (a preset name of both); unknown for other names.
+        let knee_field = crate::hysteresis::datasheet(&self.name)
+            .ok()
+            .and_then(|sheet| crate::hysteresis::HysteresisLaw::fit(&sheet).ok())
+            .and_then(|fitted| crate::material::knee_of(&fitted.law));
         let m = Material::Magnet(LinearMagnet {
-            knee_field: None,
+            knee_field,
             remanence: self.remanence,
             recoil_permeability: self.recoil_permeability,
             perpendicular_permeability: self.perpendicular_permeability,

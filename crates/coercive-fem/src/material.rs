@@ -429,7 +429,7 @@ impl MagnetDirection {
 /// The field Hk (A/m, positive) where the polarisation on the descending major branch (from
 /// positive saturation, irreversible and reversible parts) falls to 90 % of its value at
 /// H = 0, by bisection.
-fn knee_of(law: &HysteresisLaw) -> Option<f64> {
+pub(crate) fn knee_of(law: &HysteresisLaw) -> Option<f64> {
     let saturated = History::saturated(true);
     let j = |h: f64| law.polarisation(&saturated, h).0;
     let target = 0.9 * j(0.0);
