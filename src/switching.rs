@@ -134,6 +134,11 @@ pub struct PulseOutcome {
     pub guarded_knee_margin: f64,
     /// Volume fraction of the guarded magnet driven beyond its knee at the peak.
     pub guarded_beyond_knee_fraction: f64,
+    /// Mean (H along the easy axis (A/m), B along it (T)) of the switched magnet at the
+    /// pulse's peak and after it.
+    pub switched_working_points: [(f64, f64); 2],
+    /// The same for the guarded magnet.
+    pub guarded_working_points: [(f64, f64); 2],
     /// Load steps and Newton iterations of the pulse.
     pub load_steps: usize,
     /// Newton iterations over all load steps.
@@ -188,6 +193,12 @@ pub struct SwitchingReport {
     pub partial: Vec<PartialPoint>,
     /// The eddy-current caution.
     pub eddy_current_note: String,
+    /// Major loops B(H) along the easy axis of the switched and the guarded magnet (A/m, T),
+    /// descending then ascending branch, for the working-point charts.
+    pub loops: [Vec<(f64, f64)>; 2],
+    /// Flux maps (file name, SVG text) of the ON and OFF states at the pulse gap.
+    #[serde(skip)]
+    pub flux_maps: Vec<(String, String)>,
 }
 
 /// The load-step size (fraction of the peak current) of the threshold search's pulses.
@@ -319,6 +330,8 @@ where
             .ok_or_else(|| invalid(&label, "no solution after the pulse".into()))?;
         let switched_peak = working_point(peak, &self.setup.switched_magnet)?;
         let guarded_peak = working_point(peak, &self.setup.guarded_magnet)?;
+        let switched_end = working_point(last, &self.setup.switched_magnet)?;
+        let guarded_end = working_point(last, &self.setup.guarded_magnet)?;
         let margin = guarded_peak
             .knee_field_a_per_m
             .map(|k| 1.0 + guarded_peak.min_field_strength_a_per_m / k)
@@ -328,10 +341,8 @@ where
             ampere_turns: amplitude_a * self.turns,
             workpiece,
             state: Some(run.state.clone()),
-            switched_polarisation_t: working_point(last, &self.setup.switched_magnet)?
-                .mean_polarisation_t,
-            guarded_polarisation_t: working_point(last, &self.setup.guarded_magnet)?
-                .mean_polarisation_t,
+            switched_polarisation_t: switched_end.mean_polarisation_t,
+            guarded_polarisation_t: guarded_end.mean_polarisation_t,
             supplied_energy_j: run.source_energies()[0] * self.depth_m,
             peak_switched_field_a_per_m: switched_peak
                 .min_field_strength_a_per_m
@@ -339,6 +350,26 @@ where
                 .max(switched_peak.max_field_strength_a_per_m.abs()),
             guarded_knee_margin: margin,
             guarded_beyond_knee_fraction: guarded_peak.beyond_knee_fraction,
+            switched_working_points: [
+                (
+                    switched_peak.mean_field_strength_a_per_m,
+                    switched_peak.mean_flux_density_t,
+                ),
+                (
+                    switched_end.mean_field_strength_a_per_m,
+                    switched_end.mean_flux_density_t,
+                ),
+            ],
+            guarded_working_points: [
+                (
+                    guarded_peak.mean_field_strength_a_per_m,
+                    guarded_peak.mean_flux_density_t,
+                ),
+                (
+                    guarded_end.mean_field_strength_a_per_m,
+                    guarded_end.mean_flux_density_t,
+                ),
+            ],
             load_steps: run.steps.len(),
             newton_iterations: run.iterations(),
         })
@@ -632,7 +663,24 @@ where
             })
         })
         .collect::<Result<Vec<_>, StudyError>>()?;
+    let loops = [
+        major_loop(&ctx.present, &setup.switched_magnet),
+        major_loop(&ctx.present, &setup.guarded_magnet),
+    ];
+    let mut flux_maps = Vec::new();
+    for (name, state, label) in [
+        ("switching_flux_on.svg", &on_state, "ON"),
+        ("switching_flux_off.svg", &off_state, "OFF"),
+    ] {
+        let solution = ctx
+            .solver
+            .solve_with_state(&ctx.present, state, None, &ctx.settings.history.newton)
+            .map_err(|e| solve_error(label, e))?;
+        flux_maps.push((name.to_string(), flux_map(&solution, label)?));
+    }
     Ok(SwitchingReport {
+        loops,
+        flux_maps,
         on_to_off,
         off_to_on,
         removed,
@@ -645,6 +693,52 @@ where
             settings.pulse_duration_s,
         ),
     })
+}
+
+/// The major loop B(H) along the easy axis of the hysteretic magnet in `region`: the
+/// descending branch from +3 Hc to -3 Hc, then the ascending one back (200 points each).
+fn major_loop(model: &Model, region: &str) -> Vec<(f64, f64)> {
+    let Some(Material::Hysteretic(m)) = model
+        .mesh()
+        .region_by_name(region)
+        .map(|r| model.material(r))
+    else {
+        return Vec::new();
+    };
+    let span = 3.0 * m.law.coercive_field.abs().max(m.law.width.abs());
+    let mut out = Vec::with_capacity(402);
+    for (ascending, sign) in [(false, -1.0), (true, 1.0)] {
+        for k in 0..=200 {
+            let h = -sign * span + sign * 2.0 * span * k as f64 / 200.0;
+            out.push((h, MU_0 * h + m.law.major_branch(h, ascending)));
+        }
+    }
+    out
+}
+
+/// |B| and flux lines of `solution` over the whole mesh.
+fn flux_map(solution: &Solution, label: &str) -> Result<String, StudyError> {
+    use coercive_post::plot::{field_map_svg, FieldMapOptions};
+    let mesh = solution.model().mesh().clone();
+    let nv = mesh.vertices().len();
+    let cells: Vec<f64> = (0..mesh.triangles().len())
+        .map(|t| {
+            let b = solution.flux_density_at_quadrature(coercive_mesh::TriangleId(t as u32));
+            b.iter().map(|b| b[0].hypot(b[1])).sum::<f64>() / b.len() as f64
+        })
+        .collect();
+    field_map_svg(
+        &mesh,
+        &solution.potential()[..nv],
+        &cells,
+        &FieldMapOptions {
+            title: format!("{label} state at the pulse gap: |B| and flux lines"),
+            flux_lines: 40,
+            value_range: Some((0.0, 2.2)),
+            ..FieldMapOptions::default()
+        },
+    )
+    .map_err(|e| invalid("flux map", e.to_string()))
 }
 
 fn check(setup: &SwitchingSetup, settings: &SwitchingSettings) -> Result<(), StudyError> {
@@ -1023,5 +1117,46 @@ pub fn write_outputs(
     )
     .map_err(|e| e.to_string())?;
     write("switching_partial.svg", chart)?;
+    for (name, svg) in &report.flux_maps {
+        write(name, svg.clone())?;
+    }
+    // Working points on the loops: each magnet's major loop with its mean working point at
+    // the peak of, and after, the recommended OFF and ON pulses.
+    for (k, (name, what)) in [
+        ("switching_loop_switched.svg", "switched magnet"),
+        ("switching_loop_guarded.svg", "guarded magnet"),
+    ]
+    .into_iter()
+    .enumerate()
+    {
+        let points = |t: &Threshold| {
+            if k == 0 {
+                t.recommended.switched_working_points
+            } else {
+                t.recommended.guarded_working_points
+            }
+        };
+        let kilo = |p: &[(f64, f64)]| p.iter().map(|(h, b)| (h * 1e-3, *b)).collect();
+        let mut series = vec![Series::new("major loop", kilo(&report.loops[k]))];
+        for (label, t) in [
+            ("OFF pulse", &report.on_to_off),
+            ("ON pulse", &report.off_to_on),
+        ] {
+            let [peak, end] = points(t);
+            series.push(Series::new(format!("{label}: at its peak"), kilo(&[peak])));
+            series.push(Series::new(format!("{label}: after it"), kilo(&[end])));
+        }
+        let chart = xy_chart_svg(
+            &series,
+            &ChartOptions {
+                title: format!("{title}: {what}, mean working points on its major loop"),
+                x_label: "H along the easy axis (kA/m)".into(),
+                y_label: "B along the easy axis (T)".into(),
+                ..ChartOptions::default()
+            },
+        )
+        .map_err(|e| e.to_string())?;
+        write(name, chart)?;
+    }
     Ok(written)
 }
