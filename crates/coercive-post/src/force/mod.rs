@@ -13,8 +13,10 @@
 //! - **Arkkio's air-gap torque** ([`arkkio_torque`]): T = L / (mu_0 (r_o - r_i)) integral
 //!   over the air-gap annulus of r B_r B_phi dS (A. Arkkio, Acta Polytechnica Scandinavica,
 //!   Electrical Engineering Series 59, 1987).
-//! - **Co-energy difference** ([`coenergy_force`]): F = dW'/dx at constant current, from two
-//!   solutions at two positions of the body.
+//! - **Co-energy difference** ([`coenergy_force`], [`coenergy_force_richardson`]):
+//!   F = dW'/dx at constant current, from solutions at positions of the moving part, with a
+//!   Richardson estimate of the step's truncation error; [`BodyRole`] gives the sign of the
+//!   force on a body that is the moving part or apart from it.
 //!
 //! # Units and formulations
 //! Planar results are per metre of depth (N/m, N m/m) with totals for the stack depth
@@ -34,7 +36,9 @@ mod path;
 mod shell;
 
 pub use arkkio::{arkkio_torque, AirGap, ArkkioTorque};
-pub use coenergy::{coenergy_force, CoenergyForce};
+pub use coenergy::{
+    coenergy_force, coenergy_force_richardson, BodyRole, CoenergyForce, CoenergyRichardson,
+};
 pub use path::{stress_on_path, ClosedPath};
 pub use shell::{eggshell, force_on};
 
