@@ -121,8 +121,9 @@ pub struct ForcePoint {
     pub coenergy_step_m: f64,
     /// Relative spread of the three values (dimensionless).
     pub spread: f64,
-    /// True when the spread, or the co-energy step error relative to the force, exceeds
-    /// [`ForceSettings::spread_warning`].
+    /// True when the spread, the co-energy step error relative to the force, or the body's
+    /// relative uncertainty ([`coercive_post::force::BodyForce::relative_uncertainty`])
+    /// exceeds [`ForceSettings::spread_warning`].
     pub warning: bool,
     /// Eggshell force on the moving group along the motion direction (N): should be
     /// -`eggshell_n` (action-reaction).
@@ -269,8 +270,8 @@ where
     } else {
         0.0
     };
-    let warning =
-        spread > settings.force.spread_warning || step_relative > settings.force.spread_warning;
+    let tolerance = settings.force.spread_warning;
+    let warning = spread > tolerance || step_relative > tolerance || f.warning;
     let mesh = centre.model().mesh();
     let peak = settings
         .body
