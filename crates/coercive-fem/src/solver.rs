@@ -156,7 +156,7 @@ impl Solver {
             }
         }
         let model = Arc::new(model.clone());
-        let rule = stiffness_rule(model.formulation(), model.order());
+        let rule = stiffness_rule(model.formulation(), model.order(), model.is_linear());
         let asm = Assembler {
             model: &model,
             layout: &layout,
