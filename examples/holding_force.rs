@@ -76,7 +76,8 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         direction: [0.0, 1.0],
         body: Body::new(&["plate"]),
         group_body: Body::new(&pad),
-        relative_step: 0.1,
+        relative_step: 0.2,
+        size_step: 0.5,
         min_step_m: 2e-6,
         force: ForceSettings::default(),
     };

@@ -108,8 +108,9 @@ pub fn mesh_extent(mesh: &Mesh) -> f64 {
 
 /// The force-sweep settings every case study uses: the moving part `group` along
 /// `direction`, the force on `body`, the action-reaction check on `group_body`; co-energy
-/// steps of a tenth of the gap (`gaps`) or 1e-4 of the model's `extent` (offsets), at least
-/// 1e-5 of the extent.
+/// step h at most a fifth of the gap and half the element next to the group (the reported
+/// difference uses h/2, with a Richardson estimate of its error), at least 1e-5 of the
+/// model's `extent` for `gaps` and 1e-4 of it for offsets.
 pub fn sweep_settings(
     group: &str,
     direction: [f64; 2],
@@ -123,7 +124,8 @@ pub fn sweep_settings(
         direction,
         body,
         group_body,
-        relative_step: 0.1,
+        relative_step: 0.2,
+        size_step: 0.5,
         min_step_m: if gaps {
             (1e-5 * extent).max(f64::MIN_POSITIVE)
         } else {
@@ -277,8 +279,11 @@ pub struct SweepRow {
     pub eggshell_n: f64,
     /// Maxwell stress on the mid-line of the air layer (N).
     pub stress_n: f64,
-    /// Co-energy difference, central over two extra solves (N).
+    /// Co-energy difference, central with step h/2 (N).
     pub coenergy_n: f64,
+    /// Richardson estimate of the co-energy difference's step error, from the steps h and
+    /// h/2 (N).
+    pub coenergy_step_error_n: f64,
     /// Planar only: the same three forces per metre of depth (N/m), in that order.
     pub per_metre_n_per_m: Option<[f64; 3]>,
     /// Relative spread of the three values (dimensionless; printed in %).
@@ -331,9 +336,9 @@ pub enum SweepError {
 }
 
 /// Runs the case's `[sweep]`: moves the rigid group to each point (re-meshing only the air
-/// around it), solves each point and its two co-energy neighbours in parallel with the same
-/// materials, element order and boundaries as the plain solve, and reports the force on the
-/// body by three methods.
+/// around it), solves each point and its four co-energy neighbours (steps h and h/2) in
+/// parallel with the same materials, element order and boundaries as the plain solve, and
+/// reports the force on the body by three methods.
 ///
 /// # Errors
 /// [`SweepError`], naming the failing point.
@@ -403,6 +408,7 @@ pub fn run_sweep(case: &Case) -> Result<SweepSummary, SweepError> {
             eggshell_n: p.eggshell_n,
             stress_n: p.stress_n,
             coenergy_n: p.coenergy_n,
+            coenergy_step_error_n: p.coenergy_step_error_n,
             per_metre_n_per_m: depth_m
                 .map(|d| [p.eggshell_n / d, p.stress_n / d, p.coenergy_n / d]),
             spread: p.spread,

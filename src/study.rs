@@ -7,7 +7,9 @@
 
 use coercive_fem::{FemError, MagnetState, Model, NewtonSettings, Solver};
 use coercive_mesh::{Mesh, MeshError, Placement, RigidMesher};
-use coercive_post::force::{coenergy_force, force_on, Body, ForceMethod, ForceSettings};
+use coercive_post::force::{
+    coenergy_force_richardson, force_on, Body, BodyRole, ForceMethod, ForceSettings,
+};
 use coercive_post::PostError;
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
@@ -81,11 +83,16 @@ pub struct ForceSweepSettings {
     /// The body whose force is reported (e.g. the held plate, fixed).
     pub body: Body,
     /// The moving assembly's regions, for the action-reaction check (force on the group
-    /// should be minus the force on the body when nothing else carries force).
+    /// should be minus the force on the body when nothing else carries force) and for the
+    /// sign of the co-energy force: the body must be exactly these regions (it then gets
+    /// dW'/dx) or share none of them (it gets -dW'/dx), see [`BodyRole`].
     pub group_body: Body,
-    /// Co-energy step as a fraction of each point's parameter (e.g. 0.1 of the gap); the
-    /// step is at least `min_step_m`.
+    /// Largest co-energy step h as a fraction of each point's parameter when that is a gap
+    /// (e.g. 0.2); ignored when the parameter is 0 (offset sweeps).
     pub relative_step: f64,
+    /// Largest co-energy step h as a fraction of the mean edge of the air triangles touching
+    /// the moving group at each point (e.g. 0.5).
+    pub size_step: f64,
     /// Smallest co-energy step (m).
     pub min_step_m: f64,
     /// Settings of the stress methods.
@@ -102,14 +109,21 @@ pub struct ForcePoint {
     pub eggshell_n: f64,
     /// Maxwell stress on the mid-line of the first air layer, same component (N).
     pub stress_n: f64,
-    /// Co-energy difference: minus dW'/dx of the moving group (N), i.e. the body's share by
-    /// action-reaction.
+    /// Co-energy difference (N): the central difference with step h/2 of the moving group's
+    /// co-energy, dW'/dx when the body is the moving group and -dW'/dx (action-reaction)
+    /// when the body is apart from it.
     pub coenergy_n: f64,
-    /// The co-energy step used (m).
+    /// Richardson estimate of the truncation error of `coenergy_n` from the central
+    /// differences with steps h and h/2 (N, >= 0); see
+    /// [`coercive_post::force::CoenergyRichardson`].
+    pub coenergy_step_error_n: f64,
+    /// The larger co-energy step h (m); the reported value uses h/2.
     pub coenergy_step_m: f64,
     /// Relative spread of the three values (dimensionless).
     pub spread: f64,
-    /// True when the spread exceeds [`ForceSettings::spread_warning`].
+    /// True when the spread, the co-energy step error relative to the force, or the body's
+    /// relative uncertainty ([`coercive_post::force::BodyForce::relative_uncertainty`])
+    /// exceeds [`ForceSettings::spread_warning`].
     pub warning: bool,
     /// Eggshell force on the moving group along the motion direction (N): should be
     /// -`eggshell_n` (action-reaction).
@@ -123,13 +137,20 @@ pub struct ForcePoint {
 }
 
 /// Sweeps a rigid group through `points` in parallel and reports, at each, the force on
-/// `settings.body` by the eggshell, the mid-line stress and the co-energy difference (two
-/// extra solves at the point's offset plus and minus a step along the motion).
+/// `settings.body` by the eggshell, the mid-line stress and the co-energy difference (four
+/// extra solves at the point's offset plus and minus h and h/2 along the motion, with the
+/// Richardson estimate of the step's truncation error).
+///
+/// The step h is the smaller of `relative_step` times the gap (gap sweeps) and `size_step`
+/// times the mean edge of the air triangles touching the group, and at least `min_step_m`:
+/// the truncation error grows as (h / gap)^2, the re-meshing noise of the co-energy as
+/// (energy error) / h, and the energy error is set by the element size, not by the gap.
 ///
 /// `build` turns each mesh into a model (materials, windings, boundary conditions).
 ///
 /// # Errors
-/// The first failing point's [`StudyError`] (points are independent; the index says which).
+/// The first failing point's [`StudyError`] (points are independent; the index says which);
+/// [`StudyError::Invalid`] when the body overlaps the moving group without being it.
 pub fn force_sweep<B>(
     rigid: &RigidMesher,
     points: &[TranslationPoint],
@@ -181,16 +202,26 @@ where
             reason: format!("must be a unit vector, got ({}, {})", d[0], d[1]),
         });
     }
-    if !(settings.relative_step > 0.0 && settings.min_step_m > 0.0) {
+    let steps = [
+        settings.relative_step,
+        settings.size_step,
+        settings.min_step_m,
+    ];
+    if !steps.iter().all(|s| s.is_finite() && *s > 0.0) {
         return Err(StudyError::Invalid {
             what: "co-energy step".into(),
-            reason: "relative step and minimum step must be positive".into(),
+            reason: "relative step, size step and minimum step must be positive".into(),
         });
     }
+    let role =
+        BodyRole::of(&settings.body, &settings.group_body).map_err(|e| StudyError::Invalid {
+            what: "sweep body".into(),
+            reason: e.to_string(),
+        })?;
     points
         .par_iter()
         .enumerate()
-        .map(|(index, point)| sweep_point(rigid, index, point, settings, state, &build))
+        .map(|(index, point)| sweep_point(rigid, index, point, settings, role, state, &build))
         .collect()
 }
 
@@ -199,6 +230,7 @@ fn sweep_point<B>(
     index: usize,
     point: &TranslationPoint,
     settings: &ForceSweepSettings,
+    role: BodyRole,
     state: Option<&MagnetState>,
     build: &B,
 ) -> Result<ForcePoint, StudyError>
@@ -207,7 +239,6 @@ where
 {
     let label = || point.label.clone();
     let d = settings.direction;
-    let step = (settings.relative_step * point.parameter.abs()).max(settings.min_step_m);
     let solve_at = |shift: f64| {
         let offset = [
             point.offset[0] + shift * d[0],
@@ -242,22 +273,45 @@ where
         source: Box::new(source),
     };
     let centre = solve_at(0.0)?;
-    let before = solve_at(-step)?;
-    let after = solve_at(step)?;
+    let size = element_size_next_to(centre.model().mesh(), &settings.group_body.regions);
+    let mut step = settings.size_step * size;
+    if point.parameter != 0.0 {
+        step = step.min(settings.relative_step * point.parameter.abs());
+    }
+    let step = step.max(settings.min_step_m);
+    let shifted = [
+        solve_at(-step)?,
+        solve_at(-0.5 * step)?,
+        solve_at(0.5 * step)?,
+        solve_at(step)?,
+    ];
     let along = |f: [f64; 2]| f[0] * d[0] + f[1] * d[1];
     let depth = centre.depth_m().unwrap_or(1.0);
     let f = force_on(&centre, &settings.body, &settings.force).map_err(post)?;
     let g = force_on(&centre, &settings.group_body, &settings.force).map_err(post)?;
-    let cd =
-        coenergy_force(&before, &after, [2.0 * step * d[0], 2.0 * step * d[1]]).map_err(post)?;
+    let cd = coenergy_force_richardson(
+        [&shifted[0], &shifted[1], &shifted[2], &shifted[3]],
+        d,
+        step,
+    )
+    .map_err(post)?;
     let eggshell_n = along(f.force()) * depth;
     let stress_n = f
         .by(&ForceMethod::StressMidLine)
         .map(|m| along(m.force) * depth)
         .unwrap_or(f64::NAN);
-    // dW'/dx is the force on the moving group; the body gets the opposite.
-    let coenergy_n = -cd.force * depth;
+    // dW'/dx is the force on the moving group: the body's own when it is the group, the
+    // opposite (action-reaction) when it is apart from it.
+    let coenergy_n = role.sign() * cd.force * depth;
+    let coenergy_step_error_n = cd.step_error * depth;
     let spread = coercive_post::force::relative_spread(&[eggshell_n, stress_n, coenergy_n], 0.0);
+    let step_relative = if coenergy_n != 0.0 {
+        coenergy_step_error_n / coenergy_n.abs()
+    } else {
+        0.0
+    };
+    let tolerance = settings.force.spread_warning;
+    let warning = spread > tolerance || step_relative > tolerance || f.warning;
     let mesh = centre.model().mesh();
     let peak = settings
         .body
@@ -270,12 +324,55 @@ where
         eggshell_n,
         stress_n,
         coenergy_n,
+        coenergy_step_error_n,
         coenergy_step_m: step,
         spread,
-        warning: spread > settings.force.spread_warning,
+        warning,
         group_eggshell_n: along(g.force()) * depth,
         peak_flux_density_t: peak,
         newton_iterations: centre.newton_report().iterations,
         triangles: mesh.triangles().len(),
     })
+}
+
+/// Mean edge length (m) of the air-side triangles that touch the regions `regions` (the
+/// triangles outside them that share a vertex with them); the mean edge of the regions' own
+/// triangles if none touch, and of the whole mesh if the regions are not found.
+fn element_size_next_to(mesh: &Mesh, regions: &[String]) -> f64 {
+    let inside: Vec<bool> = mesh
+        .regions()
+        .iter()
+        .map(|r| regions.contains(&r.name))
+        .collect();
+    let mut on_group = vec![false; mesh.vertices().len()];
+    for (tri, r) in mesh.triangles().iter().zip(mesh.triangle_regions()) {
+        if inside[r.index()] {
+            for v in tri {
+                on_group[v.index()] = true;
+            }
+        }
+    }
+    let mean_edge = |keep: &dyn Fn(usize) -> bool| {
+        let (mut sum, mut count) = (0.0, 0usize);
+        for (t, tri) in mesh.triangles().iter().enumerate() {
+            if !keep(t) {
+                continue;
+            }
+            for k in 0..3 {
+                let (a, b) = (
+                    mesh.vertices()[tri[k].index()],
+                    mesh.vertices()[tri[(k + 1) % 3].index()],
+                );
+                sum += (a.x - b.x).hypot(a.y - b.y);
+                count += 1;
+            }
+        }
+        (count > 0).then(|| sum / count as f64)
+    };
+    let tris = mesh.triangles();
+    let regs = mesh.triangle_regions();
+    mean_edge(&|t| !inside[regs[t].index()] && tris[t].iter().any(|v| on_group[v.index()]))
+        .or_else(|| mean_edge(&|t| inside[regs[t].index()]))
+        .or_else(|| mean_edge(&|_| true))
+        .unwrap_or(0.0)
 }

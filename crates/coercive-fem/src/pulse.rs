@@ -376,7 +376,7 @@ impl Solver {
             for name in &pulse.windings {
                 base = base.with_winding_current(name, 0.0)?;
             }
-            let rule = stiffness_rule(model.formulation(), model.order());
+            let rule = stiffness_rule(model.formulation(), model.order(), model.is_linear());
             let asm = Assembler {
                 model: &base,
                 layout: &layout,

@@ -206,7 +206,7 @@ impl Solver {
             }
         }
         let model = Arc::new(model.clone());
-        let rule = stiffness_rule(model.formulation(), model.order());
+        let rule = stiffness_rule(model.formulation(), model.order(), model.is_linear());
         let t0 = std::time::Instant::now();
         let load = Assembler {
             model: &model,
@@ -284,7 +284,7 @@ impl Solver {
         settings: &NewtonSettings,
         scale: f64,
     ) -> Result<Solution, FemError> {
-        let rule = stiffness_rule(model.formulation(), model.order());
+        let rule = stiffness_rule(model.formulation(), model.order(), model.is_linear());
         let asm = Assembler {
             model,
             layout,

@@ -52,7 +52,8 @@ impl MagnetState {
     /// [`InitialMagnetisation`](crate::InitialMagnetisation). Empty when the model has no
     /// hysteretic material.
     pub fn initial(model: &Model) -> MagnetState {
-        let rule = crate::assembly::stiffness_rule(model.formulation(), model.order());
+        let rule =
+            crate::assembly::stiffness_rule(model.formulation(), model.order(), model.is_linear());
         let mesh = model.mesh();
         let mut triangles = Vec::new();
         let mut shapes = Vec::new();
@@ -116,7 +117,8 @@ impl MagnetState {
     /// [`FemError::IncompatibleState`] saying what differs.
     pub fn check(&self, model: &Model) -> Result<(), FemError> {
         let bad = |reason: String| Err(FemError::IncompatibleState { reason });
-        let rule = crate::assembly::stiffness_rule(model.formulation(), model.order());
+        let rule =
+            crate::assembly::stiffness_rule(model.formulation(), model.order(), model.is_linear());
         if self.points_per_triangle != rule.len() {
             return bad(format!(
                 "the state has {} quadrature points per triangle, the model {} (another element \

@@ -176,6 +176,19 @@ pub enum PostError {
         /// Why.
         reason: String,
     },
+    /// A force body that holds part of a moving part (or the moving part and more): the
+    /// co-energy difference gives the moving part's force as a whole, not the body's.
+    #[error(
+        "force body `{body}` overlaps the moving part `{moving}` without being it: the \
+         co-energy difference gives the force on `{moving}` as a whole; choose the moving \
+         part's regions or regions disjoint from them"
+    )]
+    BodyOverlapsMovingPart {
+        /// The body's regions joined by `+`.
+        body: String,
+        /// The moving part's regions joined by `+`.
+        moving: String,
+    },
     /// An internal evaluation failed where it should not (a bug: please report it).
     #[error("internal error: {reason}")]
     Internal {

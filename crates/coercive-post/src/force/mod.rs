@@ -13,8 +13,10 @@
 //! - **Arkkio's air-gap torque** ([`arkkio_torque`]): T = L / (mu_0 (r_o - r_i)) integral
 //!   over the air-gap annulus of r B_r B_phi dS (A. Arkkio, Acta Polytechnica Scandinavica,
 //!   Electrical Engineering Series 59, 1987).
-//! - **Co-energy difference** ([`coenergy_force`]): F = dW'/dx at constant current, from two
-//!   solutions at two positions of the body.
+//! - **Co-energy difference** ([`coenergy_force`], [`coenergy_force_richardson`]):
+//!   F = dW'/dx at constant current, from solutions at positions of the moving part, with a
+//!   Richardson estimate of the step's truncation error; [`BodyRole`] gives the sign of the
+//!   force on a body that is the moving part or apart from it.
 //!
 //! # Units and formulations
 //! Planar results are per metre of depth (N/m, N m/m) with totals for the stack depth
@@ -34,7 +36,9 @@ mod path;
 mod shell;
 
 pub use arkkio::{arkkio_torque, AirGap, ArkkioTorque};
-pub use coenergy::{coenergy_force, CoenergyForce};
+pub use coenergy::{
+    coenergy_force, coenergy_force_richardson, BodyRole, CoenergyForce, CoenergyRichardson,
+};
 pub use path::{stress_on_path, ClosedPath};
 pub use shell::{eggshell, force_on};
 
@@ -72,8 +76,9 @@ pub struct ForceSettings {
     pub shell_layers: usize,
     /// Point about which torques are taken (m; default the origin).
     pub torque_centre: [f64; 2],
-    /// Relative spread between methods above which [`BodyForce::warning`] is set
-    /// (default 0.05).
+    /// The user's tolerance on the relative uncertainty of the force: above it
+    /// [`BodyForce::warning`] is set (dimensionless; default 0.05). See
+    /// [`BodyForce::relative_uncertainty`].
     pub spread_warning: f64,
     /// Force magnitude (N/m planar, N axisymmetric) below which spreads are taken relative
     /// to this floor instead of the force itself (default 0: purely relative).
@@ -148,7 +153,29 @@ impl MethodForce {
     }
 }
 
-/// Force and torque on a body by several methods, with their relative spread.
+/// How many times the shell-thickness consistency check (the largest distance between the
+/// main eggshell and the other eggshells) enters the reported uncertainty.
+///
+/// Calibrated on the closed forms of this crate's tests (crates/coercive-post/tests/
+/// force_error_bar.rs): with first-order elements the mid-line stress equals the one-layer
+/// shell, so the method spread is the thickness check alone, and the true error of the main
+/// shell was 5.8 to 7.3 times that check (parallel conductors, coaxial coils, bar magnets);
+/// 10 covers every case with a margin. With second-order elements the mid-line stress is an
+/// independent, less accurate estimate and the spread covers the true error by itself.
+pub const THICKNESS_CHECK_FACTOR: f64 = 10.0;
+
+/// Force and torque on a body by several methods, with their relative spread and the
+/// reported uncertainty (the user's error bar).
+///
+/// # The uncertainty
+/// `force_uncertainty` is the larger of the method spread (the largest distance between two
+/// methods' force vectors) and [`THICKNESS_CHECK_FACTOR`] times the largest distance between
+/// the main eggshell and another eggshell (the shell-thickness consistency check; Henrotte
+/// et al., COMPEL 23(4), 2004: with exact fields every shell gives the same force). The same
+/// rule gives `torque_uncertainty`. On every closed-form case of the test suite the true
+/// error of the main result lies within it (12 of 12, P1 and P2; see force_error_bar.rs).
+/// It does not include modelling errors the methods share (a flux-tight box too close, a
+/// polygonal outline): those are the model's, not the force computation's.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct BodyForce {
     /// The body.
@@ -161,7 +188,16 @@ pub struct BodyForce {
     pub force_spread: f64,
     /// The same for the torque (planar only; 0 axisymmetric).
     pub torque_spread: f64,
-    /// True when a spread exceeds [`ForceSettings::spread_warning`].
+    /// The error bar of the main force vector (N/m planar, N axisymmetric): see
+    /// [`BodyForce`], "The uncertainty".
+    pub force_uncertainty: f64,
+    /// The error bar of the main torque (N m/m planar; 0 axisymmetric).
+    pub torque_uncertainty: f64,
+    /// `force_uncertainty` over the largest force magnitude of the methods (or over
+    /// [`ForceSettings::force_floor`] if that is larger); 0 when both are 0. Dimensionless.
+    pub relative_uncertainty: f64,
+    /// True when `relative_uncertainty` exceeds the user's tolerance
+    /// [`ForceSettings::spread_warning`].
     pub warning: bool,
     /// The centre of the torques (m).
     pub torque_centre: [f64; 2],
@@ -192,20 +228,82 @@ impl BodyForce {
     }
 
     /// Adds another estimate (e.g. [`stress_on_path`] on a path of the user's choice) and
-    /// recomputes the spreads and the warning with `settings`.
+    /// recomputes the spreads, the uncertainties and the warning with `settings`.
     pub fn add_method(&mut self, method: MethodForce, settings: &ForceSettings) {
         self.methods.push(method);
+        self.update(settings);
+    }
+
+    /// A body force from method values (the first is the main result), with its spreads,
+    /// uncertainties and warning.
+    pub(crate) fn from_methods(
+        body: &Body,
+        methods: Vec<MethodForce>,
+        settings: &ForceSettings,
+        shell_layers_reached: usize,
+    ) -> BodyForce {
+        let mut f = BodyForce {
+            body: body.clone(),
+            methods,
+            force_spread: 0.0,
+            torque_spread: 0.0,
+            force_uncertainty: 0.0,
+            torque_uncertainty: 0.0,
+            relative_uncertainty: 0.0,
+            warning: false,
+            torque_centre: settings.torque_centre,
+            shell_layers_reached,
+        };
+        f.update(settings);
+        f
+    }
+
+    /// Recomputes every derived field from `methods`.
+    fn update(&mut self, settings: &ForceSettings) {
         let forces: Vec<[f64; 2]> = self.methods.iter().map(|m| m.force).collect();
         let torques: Vec<f64> = self.methods.iter().map(|m| m.torque).collect();
-        self.force_spread = vector_spread(&forces, settings.force_floor);
-        if self.main().depth_m.is_some() {
-            self.torque_spread = relative_spread(&torques, 0.0);
+        let floor = settings.force_floor;
+        self.force_spread = vector_spread(&forces, floor);
+        self.force_uncertainty = self.uncertainty(|a, b| distance(a.force, b.force));
+        let scale = force_scale(&forces, floor);
+        self.relative_uncertainty = if scale > 0.0 {
+            self.force_uncertainty / scale
+        } else {
+            0.0
+        };
+        let planar = self.main().depth_m.is_some();
+        (self.torque_spread, self.torque_uncertainty) = if planar {
+            (
+                relative_spread(&torques, 0.0),
+                self.uncertainty(|a, b| (a.torque - b.torque).abs()),
+            )
+        } else {
+            (0.0, 0.0)
+        };
+        self.warning = self.relative_uncertainty > settings.spread_warning;
+    }
+
+    /// The larger of the largest pairwise `gap` between methods and
+    /// [`THICKNESS_CHECK_FACTOR`] times the largest `gap` between the main result and another
+    /// eggshell.
+    fn uncertainty(&self, gap: impl Fn(&MethodForce, &MethodForce) -> f64) -> f64 {
+        let main = self.main();
+        let mut spread = 0.0_f64;
+        let mut thickness = 0.0_f64;
+        for a in &self.methods {
+            for b in &self.methods {
+                spread = spread.max(gap(a, b));
+            }
+            if matches!(a.method, ForceMethod::Eggshell { .. }) {
+                thickness = thickness.max(gap(main, a));
+            }
         }
-        self.warning = self.force_spread > settings.spread_warning;
+        spread.max(THICKNESS_CHECK_FACTOR * thickness)
     }
 }
 
-/// Relative spread of a set of values: (max - min) / max(|values|, floor); 0 when all are 0.
+/// Relative spread of a set of values: (max - min) / max(|values|, floor); 0 when all are 0
+/// or the set is empty.
 pub fn relative_spread(values: &[f64], floor: f64) -> f64 {
     let max = values.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
     let min = values.iter().cloned().fold(f64::INFINITY, f64::min);
@@ -217,19 +315,29 @@ pub fn relative_spread(values: &[f64], floor: f64) -> f64 {
     }
 }
 
-/// Relative spread of force vectors: the largest pairwise distance over the largest
-/// magnitude (or `floor`).
-pub(crate) fn vector_spread(values: &[[f64; 2]], floor: f64) -> f64 {
-    let scale = values
+/// The distance between two force vectors.
+fn distance(a: [f64; 2], b: [f64; 2]) -> f64 {
+    (a[0] - b[0]).hypot(a[1] - b[1])
+}
+
+/// The largest magnitude of a set of force vectors, or |floor| if that is larger.
+fn force_scale(values: &[[f64; 2]], floor: f64) -> f64 {
+    values
         .iter()
-        .fold(floor.abs(), |m, v| m.max(v[0].hypot(v[1])));
+        .fold(floor.abs(), |m, v| m.max(v[0].hypot(v[1])))
+}
+
+/// Relative spread of force vectors: the largest pairwise distance over the largest
+/// magnitude (or `floor`); 0 when the scale is 0.
+pub fn vector_spread(values: &[[f64; 2]], floor: f64) -> f64 {
+    let scale = force_scale(values, floor);
     if scale == 0.0 {
         return 0.0;
     }
     let mut d = 0.0_f64;
     for a in values {
         for b in values {
-            d = d.max((a[0] - b[0]).hypot(a[1] - b[1]));
+            d = d.max(distance(*a, *b));
         }
     }
     d / scale

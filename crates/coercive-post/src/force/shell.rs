@@ -6,8 +6,8 @@ use coercive_fem::{Formulation, Solution};
 use coercive_mesh::{Mesh, TriangleId};
 
 use super::{
-    body_mask, depth_of, finish, is_air, maxwell_stress, vector_spread, weight, Body, BodyForce,
-    ForceMethod, ForceSettings, MethodForce,
+    body_mask, depth_of, finish, is_air, maxwell_stress, weight, Body, BodyForce, ForceMethod,
+    ForceSettings, MethodForce,
 };
 use crate::PostError;
 
@@ -438,8 +438,9 @@ pub fn eggshell(
 
 /// Force and torque on a body by three estimates side by side: the eggshell with
 /// `settings.shell_layers` layers (the main result), the one-layer eggshell (thickness
-/// consistency check) and the Maxwell stress on the mid-line of the first air layer; with
-/// their relative spread and a warning flag.
+/// consistency check; two layers when the main shell has one) and the Maxwell stress on the
+/// mid-line of the first air layer; with their relative spread, the uncertainty of the main
+/// result (see [`BodyForce`]) and a warning flag.
 ///
 /// With first-order (P1) elements the mid-line stress equals the one-layer eggshell
 /// exactly; with P2 all three are distinct estimates.
@@ -468,6 +469,15 @@ pub fn force_on(
         depth_m: depth,
     }];
     let thin = if settings.shell_layers == 1 {
+        // The thickness check then uses a two-layer shell.
+        let thick = base.shell(mesh, 2);
+        let (f, t) = shell_integral(solution, &thick, c)?;
+        methods.push(MethodForce {
+            method: ForceMethod::Eggshell { layers: 2 },
+            force: f,
+            torque: t,
+            depth_m: depth,
+        });
         main
     } else {
         let thin = base.shell(mesh, 1);
@@ -487,31 +497,7 @@ pub fn force_on(
         torque: t_mid,
         depth_m: depth,
     });
-    Ok(summarise(body, methods, settings, reached))
-}
-
-/// Builds a [`BodyForce`] from method values.
-pub(crate) fn summarise(
-    body: &Body,
-    methods: Vec<MethodForce>,
-    settings: &ForceSettings,
-    layers_reached: usize,
-) -> BodyForce {
-    let forces: Vec<[f64; 2]> = methods.iter().map(|m| m.force).collect();
-    let torques: Vec<f64> = methods.iter().map(|m| m.torque).collect();
-    let force_spread = vector_spread(&forces, settings.force_floor);
-    let torque_spread = super::relative_spread(&torques, 0.0);
-    let planar = methods.first().is_some_and(|m| m.depth_m.is_some());
-    let torque_spread = if planar { torque_spread } else { 0.0 };
-    BodyForce {
-        body: body.clone(),
-        methods,
-        force_spread,
-        torque_spread,
-        warning: force_spread > settings.spread_warning,
-        torque_centre: settings.torque_centre,
-        shell_layers_reached: layers_reached,
-    }
+    Ok(BodyForce::from_methods(body, methods, settings, reached))
 }
 
 #[cfg(test)]
