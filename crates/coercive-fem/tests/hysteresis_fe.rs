@@ -280,7 +280,9 @@ fn a_state_is_a_value_that_solves_restore_and_branch_from() {
     let model = slab_model(ElementOrder::P2, 2, 3);
     let solver = Solver::new(&model).unwrap();
     let initial = MagnetState::initial(&model);
-    assert_eq!(initial.points(), initial.triangles().len() * 3);
+    // Nonlinear planar P2 integrates with the 6-point degree-4 rule: one history per point.
+    assert_eq!(initial.points_per_triangle(), 6);
+    assert_eq!(initial.points(), initial.triangles().len() * 6);
     let run = solver
         .solve_history(
             &model,
