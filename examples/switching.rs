@@ -91,10 +91,12 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         off_current_sign: 1.0,
     };
     let settings = SwitchingSettings {
-        gaps_m: [0.05, 0.1, 0.2, 0.3, 0.5, 0.75, 1.0, 1.25, 1.5, 2.0, 2.5, 3.0]
-            .iter()
-            .map(|g| g * 1e-3)
-            .collect(),
+        gaps_m: [
+            0.05, 0.1, 0.2, 0.3, 0.5, 0.75, 1.0, 1.25, 1.5, 2.0, 2.5, 3.0,
+        ]
+        .iter()
+        .map(|g| g * 1e-3)
+        .collect(),
         full_pulse_a: 150.0,
         switched_fraction: 0.95,
         amplitude_tolerance: 0.01,

@@ -225,12 +225,9 @@ where
             })?;
         build(mesh)
             .and_then(|m| match state {
-                Some(state) => Solver::new(&m)?.solve_with_state(
-                    &m,
-                    state,
-                    None,
-                    &NewtonSettings::default(),
-                ),
+                Some(state) => {
+                    Solver::new(&m)?.solve_with_state(&m, state, None, &NewtonSettings::default())
+                }
                 None => m.solve(),
             })
             .map_err(|source| StudyError::Solve {

@@ -335,8 +335,7 @@ where
                 ),
             ));
         }
-        let fraction =
-            |o: &PulseOutcome| (o.switched_polarisation_t - start_polarisation) / span;
+        let fraction = |o: &PulseOutcome| (o.switched_polarisation_t - start_polarisation) / span;
         let mut evaluations = vec![(full.amplitude_a, fraction(full))];
         let (mut lo, mut hi) = (0.0, s.full_pulse_a.abs());
         while (hi - lo) > s.amplitude_tolerance * hi {
@@ -351,8 +350,11 @@ where
             }
         }
         let amplitude_a = sign * hi;
-        let recommended =
-            self.pulse(start, amplitude_a * s.recommended_margin, Workpiece::Present)?;
+        let recommended = self.pulse(
+            start,
+            amplitude_a * s.recommended_margin,
+            Workpiece::Present,
+        )?;
         Ok(Threshold {
             direction: direction.into(),
             amplitude_a,
@@ -450,7 +452,10 @@ where
     let removed = build(mesh, Workpiece::Removed).map_err(|e| solve_error("model", e))?;
     for region in [&setup.switched_magnet, &setup.guarded_magnet] {
         let r = present.mesh().region_by_name(region).ok_or_else(|| {
-            invalid("switching study", format!("no region `{region}` in the mesh"))
+            invalid(
+                "switching study",
+                format!("no region `{region}` in the mesh"),
+            )
         })?;
         if !matches!(present.material(r), Material::Hysteretic(_)) {
             return Err(invalid(
@@ -490,7 +495,10 @@ where
     let full = settings.full_pulse_a.abs();
     let magnetised = MagnetState::initial(&ctx.present);
     let first_off = ctx.pulse(&magnetised, off * full, Workpiece::Present)?;
-    let off_full = first_off.state.clone().unwrap_or_else(|| magnetised.clone());
+    let off_full = first_off
+        .state
+        .clone()
+        .unwrap_or_else(|| magnetised.clone());
     let on_full_outcome = ctx.pulse(&off_full, -off * full, Workpiece::Present)?;
     let on_full = on_full_outcome
         .state
@@ -512,8 +520,16 @@ where
         &on_full_outcome,
         -off,
     )?;
-    let on_state = off_to_on.recommended.state.clone().unwrap_or(on_full.clone());
-    let off_state = on_to_off.recommended.state.clone().unwrap_or(off_full.clone());
+    let on_state = off_to_on
+        .recommended
+        .state
+        .clone()
+        .unwrap_or(on_full.clone());
+    let off_state = on_to_off
+        .recommended
+        .state
+        .clone()
+        .unwrap_or(off_full.clone());
     let removed = [
         ctx.pulse(
             &on_full,
@@ -581,7 +597,10 @@ fn check(setup: &SwitchingSetup, settings: &SwitchingSettings) -> Result<(), Stu
         if v.is_finite() && v > 0.0 {
             Ok(())
         } else {
-            Err(invalid(what, format!("must be positive and finite, got {v}")))
+            Err(invalid(
+                what,
+                format!("must be positive and finite, got {v}"),
+            ))
         }
     };
     positive("full_pulse_a (A)", settings.full_pulse_a.abs())?;
@@ -617,8 +636,15 @@ fn check(setup: &SwitchingSetup, settings: &SwitchingSettings) -> Result<(), Stu
             "at least one amplitude".into(),
         ));
     }
-    if let Some(g) = settings.gaps_m.iter().find(|g| !(g.is_finite() && **g > 0.0)) {
-        return Err(invalid("gaps_m (m)", format!("gaps must be positive, got {g}")));
+    if let Some(g) = settings
+        .gaps_m
+        .iter()
+        .find(|g| !(g.is_finite() && **g > 0.0))
+    {
+        return Err(invalid(
+            "gaps_m (m)",
+            format!("gaps must be positive, got {g}"),
+        ));
     }
     Ok(())
 }

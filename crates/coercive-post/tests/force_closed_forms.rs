@@ -297,6 +297,8 @@ fn round_magnet_in_a_uniform_field_feels_the_dipole_torque() {
     );
     assert!(e < 2e-3);
     assert!(rel(ark.covered_fraction, 1.0) < 1e-2);
+    assert_eq!(ark.sectors, 1);
+    assert_eq!(ark.whole_machine_torque(), ark.torque);
     eprintln!(
         "Arkkio radii {} m, {} m",
         ark.inner_radius, ark.outer_radius
