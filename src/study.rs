@@ -5,9 +5,14 @@
 //! air around it ([`coercive_mesh::RigidMesher`]), so force curves carry no re-meshing noise
 //! from the moving parts and per-triangle states stay valid.
 
-use coercive_fem::{FemError, MagnetState, Model, NewtonSettings, Solver};
-use coercive_mesh::{Mesh, MeshError, Placement, RigidMesher};
-use coercive_post::force::{coenergy_force, force_on, Body, ForceMethod, ForceSettings};
+use coercive_fem::{
+    FemError, MagnetDirection, MagnetState, Material, Model, NewtonSettings, Solution, Solver,
+};
+use coercive_mesh::{Mesh, MeshError, Placement, Point2, RegionId, RigidMesher};
+use coercive_post::force::{
+    arkkio_torque, coenergy_force, force_on, AirGap, Body, ForceMethod, ForceSettings,
+};
+use coercive_post::winding::flux_linkage;
 use coercive_post::PostError;
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
@@ -278,4 +283,372 @@ where
         newton_iterations: centre.newton_report().iterations,
         triangles: mesh.triangles().len(),
     })
+}
+
+/// Settings of [`torque_sweep`]: a rigid group (the rotor) turned about a centre.
+#[derive(Clone, Debug, PartialEq)]
+pub struct TorqueSweepSettings {
+    /// The rigid group that turns (the rotor).
+    pub group: String,
+    /// Centre of rotation (m).
+    pub centre: [f64; 2],
+    /// The body whose torque is reported (e.g. the rotor iron, or a rotor magnet).
+    pub body: Body,
+    /// The air-gap band for Arkkio's torque (a region or an annulus of air between the
+    /// moving part and the fixed parts), if the mesh has one.
+    pub gap: Option<AirGap>,
+    /// Number of sectors the model stands for (1 for a full cross-section, n for a periodic
+    /// or anti-periodic sector of 360/n degrees). Every torque and flux linkage reported is
+    /// the model's value times `sectors`: the whole machine.
+    pub sectors: u32,
+    /// Co-energy torque dW'/dtheta at constant current from two extra solves at plus and
+    /// minus this angle (rad), or `None` to skip it (a third of the cost).
+    pub coenergy_step_rad: Option<f64>,
+    /// Windings whose flux linkage is reported (all windings of the model when empty).
+    pub windings: Vec<String>,
+    /// Settings of the stress methods (the torque centre is set to `centre`).
+    pub force: ForceSettings,
+}
+
+/// One set of winding currents of a sweep point: (winding name, current per turn in A);
+/// windings not listed keep the model's current.
+pub type Currents = Vec<(String, f64)>;
+
+/// The torque on the body and the flux linkages at one (angle, currents) point of a
+/// [`torque_sweep`], for the whole machine (the model's values times
+/// [`TorqueSweepSettings::sectors`]) and the stack depth (planar): N m and Wb.
+/// Counter-clockwise torque is positive.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct TorquePoint {
+    /// Index of the angle in the sweep's list.
+    pub angle_index: usize,
+    /// Index of the current set in the sweep's list (0 when none was given).
+    pub current_index: usize,
+    /// Rotation of the group from its drawn position (rad, counter-clockwise).
+    pub angle_rad: f64,
+    /// The currents set at this point (A per turn).
+    pub currents_a: Currents,
+    /// Whole-machine torque by the eggshell (virtual work over the air layer) (N m).
+    pub eggshell_nm: f64,
+    /// Whole-machine torque by the Maxwell stress on the mid-line of the air layer (N m).
+    pub stress_nm: f64,
+    /// Whole-machine torque by Arkkio's method over the air-gap band (N m), if a band was
+    /// given.
+    pub arkkio_nm: Option<f64>,
+    /// Whole-machine co-energy torque dW'/dtheta at constant current (N m), if asked.
+    pub coenergy_nm: Option<f64>,
+    /// Relative spread of the available torque values (dimensionless).
+    pub spread: f64,
+    /// True when the spread exceeds [`ForceSettings::spread_warning`].
+    pub warning: bool,
+    /// Whole-machine flux linkage of each reported winding (Wb).
+    pub flux_linkage_wb: Vec<(String, f64)>,
+    /// Whole-machine co-energy (J) for the stack depth.
+    pub coenergy_j: f64,
+    /// Newton iterations of the point's solve.
+    pub newton_iterations: usize,
+    /// Triangles of the point's mesh.
+    pub triangles: usize,
+}
+
+/// `material` as placed by `placement`: easy axes and principal directions turn with the
+/// part, pattern centres move with it. Isotropic materials are returned unchanged.
+pub fn placed_material(material: &Material, placement: &Placement) -> Material {
+    let turn = |d: &MagnetDirection| -> MagnetDirection {
+        let moved = |c: [f64; 2]| {
+            let p = placement.apply(Point2::new(c[0], c[1]));
+            [p.x, p.y]
+        };
+        match d {
+            MagnetDirection::Fixed { angle } => MagnetDirection::Fixed {
+                angle: angle + placement.rotation_rad,
+            },
+            MagnetDirection::Radial { centre, outward } => MagnetDirection::Radial {
+                centre: moved(*centre),
+                outward: *outward,
+            },
+            MagnetDirection::Azimuthal {
+                centre,
+                counter_clockwise,
+            } => MagnetDirection::Azimuthal {
+                centre: moved(*centre),
+                counter_clockwise: *counter_clockwise,
+            },
+            MagnetDirection::Parallel { centre, outward } => MagnetDirection::Parallel {
+                centre: moved(*centre),
+                outward: *outward,
+            },
+        }
+    };
+    match material {
+        Material::Anisotropic {
+            parallel,
+            perpendicular,
+            angle,
+        } => Material::Anisotropic {
+            parallel: *parallel,
+            perpendicular: *perpendicular,
+            angle: angle + placement.rotation_rad,
+        },
+        Material::Magnet(m) => {
+            let mut m = m.clone();
+            m.direction = turn(&m.direction);
+            Material::Magnet(m)
+        }
+        Material::Hysteretic(m) => {
+            let mut m = m.clone();
+            m.direction = turn(&m.direction);
+            Material::Hysteretic(m)
+        }
+        other => other.clone(),
+    }
+}
+
+/// The model with the materials of the moving part's regions placed by `placement` (see
+/// [`placed_material`]); the group's regions are those of its triangles, which come first
+/// in every mesh of the [`RigidMesher`].
+fn with_group_placed(
+    model: Model,
+    group_triangles: usize,
+    placement: &Placement,
+) -> Result<Model, FemError> {
+    if placement.rotation_rad == 0.0 && placement.translation == Point2::default() {
+        return Ok(model);
+    }
+    let mesh = model.mesh().clone();
+    let mut regions: Vec<RegionId> = mesh.triangle_regions()[..group_triangles].to_vec();
+    regions.sort_unstable();
+    regions.dedup();
+    let mut builder = None;
+    for r in regions {
+        let m = model.material(r);
+        let placed = placed_material(m, placement);
+        if &placed != m {
+            let b = builder.take().unwrap_or_else(|| model.to_builder());
+            builder = Some(b.replace_material(model.region_name(r), placed));
+        }
+    }
+    match builder {
+        Some(b) => b.build(),
+        None => Ok(model),
+    }
+}
+
+/// Turns a rigid group through `angles_rad` (counter-clockwise from its drawn position,
+/// about [`TorqueSweepSettings::centre`]) and reports, at each angle and for each set of
+/// winding currents in `currents` (the model's own currents when empty), the torque on the
+/// body by the eggshell, the mid-line stress, Arkkio's band (if given) and the co-energy
+/// difference (if asked), with the flux linkage of each winding; all for the whole machine.
+///
+/// The rotation counterpart of [`force_sweep`]: the group is meshed once and re-placed with
+/// [`Placement::rotation`], only the air around it is meshed again ([`RigidMesher`]), and
+/// `build` turns each mesh into a model exactly as for a translation sweep; materials of
+/// the moving part with a direction (magnets, anisotropic steel) turn with it.
+///
+/// Angles run in parallel (rayon); the current sets of one angle share its mesh and its
+/// symbolic factorisation and run in the given order, each warm-started from the previous
+/// solution. Every point is a pure function of its inputs, so the result does not depend
+/// on the number of threads. Points come angle by angle, currents within an angle.
+///
+/// # Errors
+/// [`StudyError::Invalid`] for a zero sector count, a non-finite angle or step, a winding
+/// that is not in the model, or a band whose coverage disagrees with `sectors`; otherwise
+/// the first failing point's error, naming its angle and currents.
+pub fn torque_sweep<B>(
+    rigid: &RigidMesher,
+    angles_rad: &[f64],
+    currents: &[Currents],
+    settings: &TorqueSweepSettings,
+    build: B,
+) -> Result<Vec<TorquePoint>, StudyError>
+where
+    B: Fn(Mesh) -> Result<Model, FemError> + Sync,
+{
+    if settings.sectors == 0 {
+        return Err(StudyError::Invalid {
+            what: "sectors".into(),
+            reason: "the model stands for at least one sector".into(),
+        });
+    }
+    if let Some(a) = angles_rad.iter().find(|a| !a.is_finite()) {
+        return Err(StudyError::Invalid {
+            what: "rotation angle".into(),
+            reason: format!("must be finite, got {a} rad"),
+        });
+    }
+    if let Some(h) = settings.coenergy_step_rad {
+        if !(h.is_finite() && h > 0.0) {
+            return Err(StudyError::Invalid {
+                what: "co-energy angle step".into(),
+                reason: format!("must be a positive finite angle, got {h} rad"),
+            });
+        }
+    }
+    let sets: Vec<Currents> = if currents.is_empty() {
+        vec![Vec::new()]
+    } else {
+        currents.to_vec()
+    };
+    let rows: Result<Vec<Vec<TorquePoint>>, StudyError> = angles_rad
+        .par_iter()
+        .enumerate()
+        .map(|(index, &angle)| torque_at_angle(rigid, index, angle, &sets, settings, &build))
+        .collect();
+    Ok(rows?.into_iter().flatten().collect())
+}
+
+fn torque_at_angle<B>(
+    rigid: &RigidMesher,
+    angle_index: usize,
+    angle: f64,
+    sets: &[Currents],
+    settings: &TorqueSweepSettings,
+    build: &B,
+) -> Result<Vec<TorquePoint>, StudyError>
+where
+    B: Fn(Mesh) -> Result<Model, FemError> + Sync,
+{
+    let label = |currents: &Currents| {
+        let mut s = format!("angle {:.4} deg", angle.to_degrees());
+        for (w, i) in currents {
+            s.push_str(&format!(", {w} {i} A"));
+        }
+        s
+    };
+    let solve_error = |currents: &Currents, source: FemError| StudyError::Solve {
+        index: angle_index,
+        label: label(currents),
+        source: Box::new(source),
+    };
+    let post_error = |currents: &Currents, source: PostError| StudyError::Post {
+        index: angle_index,
+        label: label(currents),
+        source: Box::new(source),
+    };
+    let centre = Point2::new(settings.centre[0], settings.centre[1]);
+    // A model and its solver at `angle` (the model carries the drawn currents).
+    let model_at = |a: f64| -> Result<(Model, Solver), StudyError> {
+        let placement = Placement::rotation(a, centre);
+        let mesh = rigid
+            .mesh_at(&[(settings.group.as_str(), placement)])
+            .map_err(|source| StudyError::Mesh {
+                index: angle_index,
+                label: label(&Vec::new()),
+                source,
+            })?;
+        let model = build(mesh)
+            .and_then(|m| with_group_placed(m, rigid.group_triangle_count(), &placement))
+            .map_err(|e| solve_error(&Vec::new(), e))?;
+        let solver = Solver::new(&model).map_err(|e| solve_error(&Vec::new(), e))?;
+        Ok((model, solver))
+    };
+    let with_currents = |model: &Model, currents: &Currents| -> Result<Model, StudyError> {
+        let mut m = model.clone();
+        for (w, i) in currents {
+            m = m
+                .with_winding_current(w, *i)
+                .map_err(|e| solve_error(currents, e))?;
+        }
+        Ok(m)
+    };
+    let (model, solver) = model_at(angle)?;
+    let side_models = match settings.coenergy_step_rad {
+        Some(h) => Some((model_at(angle - h)?, model_at(angle + h)?)),
+        None => None,
+    };
+    let windings: Vec<String> = if settings.windings.is_empty() {
+        model.windings().iter().map(|w| w.name.clone()).collect()
+    } else {
+        settings.windings.clone()
+    };
+    let n = f64::from(settings.sectors);
+    let newton = NewtonSettings::default();
+    let force_settings = ForceSettings {
+        torque_centre: settings.centre,
+        ..settings.force.clone()
+    };
+    let mut previous: Option<Solution> = None;
+    let mut side_previous: Option<(Solution, Solution)> = None;
+    let mut out = Vec::with_capacity(sets.len());
+    for (current_index, currents) in sets.iter().enumerate() {
+        let m = with_currents(&model, currents)?;
+        let sol = match &previous {
+            Some(p) => solver.solve_from(&m, p, &newton),
+            None => solver.solve(&m, &newton),
+        }
+        .map_err(|e| solve_error(currents, e))?;
+        let depth = sol.depth_m().unwrap_or(1.0);
+        let scale = n * depth;
+        let f =
+            force_on(&sol, &settings.body, &force_settings).map_err(|e| post_error(currents, e))?;
+        let eggshell_nm = f.torque() * scale;
+        let stress_nm = f
+            .by(&ForceMethod::StressMidLine)
+            .map(|m| m.torque * scale)
+            .unwrap_or(f64::NAN);
+        let arkkio_nm = match &settings.gap {
+            Some(gap) => {
+                let a = arkkio_torque(&sol, gap).map_err(|e| post_error(currents, e))?;
+                if a.sectors != settings.sectors {
+                    return Err(StudyError::Invalid {
+                        what: "sectors".into(),
+                        reason: format!(
+                            "the air-gap band covers 1/{} of the circle but the study \
+                             says the model is 1/{} of the machine",
+                            a.sectors, settings.sectors
+                        ),
+                    });
+                }
+                Some(a.torque * scale)
+            }
+            None => None,
+        };
+        let coenergy_nm = match (&side_models, settings.coenergy_step_rad) {
+            (Some(((mb, sb), (ma, sa))), Some(h)) => {
+                let (mb, ma) = (with_currents(mb, currents)?, with_currents(ma, currents)?);
+                let (before, after) = match &side_previous {
+                    Some((pb, pa)) => (
+                        sb.solve_from(&mb, pb, &newton),
+                        sa.solve_from(&ma, pa, &newton),
+                    ),
+                    None => (sb.solve(&mb, &newton), sa.solve(&ma, &newton)),
+                };
+                let (before, after) = (
+                    before.map_err(|e| solve_error(currents, e))?,
+                    after.map_err(|e| solve_error(currents, e))?,
+                );
+                let t = (after.coenergy() - before.coenergy()) / (2.0 * h) * scale;
+                side_previous = Some((before, after));
+                Some(t)
+            }
+            _ => None,
+        };
+        let mut values = vec![eggshell_nm, stress_nm];
+        values.extend(arkkio_nm);
+        values.extend(coenergy_nm);
+        let spread = coercive_post::force::relative_spread(&values, 0.0);
+        let mut flux_linkage_wb = Vec::with_capacity(windings.len());
+        for w in &windings {
+            let psi = flux_linkage(&sol, w).map_err(|e| post_error(currents, e))?;
+            flux_linkage_wb.push((w.clone(), n * psi.total_wb));
+        }
+        out.push(TorquePoint {
+            angle_index,
+            current_index,
+            angle_rad: angle,
+            currents_a: currents.clone(),
+            eggshell_nm,
+            stress_nm,
+            arkkio_nm,
+            coenergy_nm,
+            spread,
+            warning: spread > settings.force.spread_warning,
+            flux_linkage_wb,
+            coenergy_j: sol.coenergy() * scale,
+            newton_iterations: sol.newton_report().iterations,
+            triangles: m.mesh().triangles().len(),
+        });
+        previous = Some(sol);
+    }
+    Ok(out)
 }

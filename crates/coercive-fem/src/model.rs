@@ -218,6 +218,15 @@ impl ModelBuilder {
         self
     }
 
+    /// Assigns `material` to the region named `region` in place of any material given to it
+    /// before (e.g. a moving magnet's easy axis turned with the part, on a builder from
+    /// [`Model::to_builder`]).
+    pub fn replace_material(mut self, region: &str, material: Material) -> Self {
+        self.materials.retain(|(r, _)| r != region);
+        self.materials.push((region.to_string(), material));
+        self
+    }
+
     /// Adds a uniform current density `j` (A/m^2, along +z planar or +phi axisymmetric) in
     /// region `region`.
     pub fn current_density(mut self, region: &str, j: f64) -> Self {
