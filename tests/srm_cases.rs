@@ -62,7 +62,7 @@ fn the_half_sector_times_two_is_the_full_machine() {
 
     let (wf, wh) = (full.energy(), half.energy());
     eprintln!("energy: full {wf:.6} J/m, 2 x sector {:.6} J/m", 2.0 * wh);
-    // Measured: 1.1e-4.
+    // Measured: 1e-4.
     assert!(rel(2.0 * wh, wf) < 5e-4, "{wf} {wh}");
 
     // Flux linkage of each phase: the sector holds one of the phase's two coils.
@@ -78,7 +78,7 @@ fn the_half_sector_times_two_is_the_full_machine() {
             "{}: flux linkage full {pf:.6e} Wb, 2 x sector {ph:.6e} Wb",
             a.linkage.winding
         );
-        // Measured: below 7e-5 of the largest linkage.
+        // Measured: below 2e-4 of the largest linkage.
         assert!((pf - ph).abs() < 1e-3 * scale, "{pf} {ph}");
     }
 
@@ -96,10 +96,11 @@ fn the_half_sector_times_two_is_the_full_machine() {
             a * depth
         );
         // The methods agree with each other and the sector with the full model.
-        // Measured: sector versus full within 3e-4 (eggshells, Arkkio) and 1.4 % (mid-line
-        // stress); Arkkio within 7e-4 of the two-layer eggshell.
+        // Measured: sector versus full within 2e-3 (eggshells, Arkkio) and 1.2 % (mid-line
+        // stress, the weakest method: one path through one element layer); Arkkio within
+        // 1e-3 of the two-layer eggshell, the mid-line within 2.6 %.
         let tol = if name == &ForceMethod::StressMidLine.to_string() {
-            2e-2
+            5e-2
         } else {
             5e-3
         };
@@ -149,8 +150,52 @@ fn the_full_machine_turns_and_its_torque_methods_agree() {
         "the rotor turns towards phase B (counter-clockwise)"
     );
     assert!(rel(ark, egg) < 5e-3, "{ark} {egg}");
-    // Measured: Arkkio 1e-3 from the eggshell; the co-energy difference -1.2 % at a 1 degree
-    // step (+2.0 % at 0.25 degree): the fixed parts are meshed again at each angle, and the
-    // difference of two co-energies of about 30 J/m carries that meshing noise.
+    // Measured: Arkkio 1.4e-3 from the eggshell, the co-energy difference 0.2 % at a 1 degree
+    // step (it was -1.2 % with the direction-dependent size field, and +2 % at a 0.25 degree
+    // step): the fixed parts are meshed again at each angle, and the difference of two
+    // co-energies of about 30 J/m carries that meshing noise.
     assert!(rel(co, egg) < 2e-2, "{co} {egg}");
+}
+
+#[test]
+fn the_six_identical_poles_mesh_alike_at_every_rotor_angle() {
+    // Issue 9 item 6. Before: 983 and 964 triangles in the tips of poles 1 and 4 against
+    // 1945-1980 in the others. Two causes: the automatic gap size followed the rotor's
+    // drawn position (rotor poles at 45 degrees face stator poles 2, 3, 5 and 6 across the
+    // 0.5 mm gap, not 1 and 4), and the size field grew by a chamfer distance that is exact
+    // only along the grid's axes and diagonals (poles 1 and 4 lie on an axis). Now the air-gap
+    // band gives every pole the same gap whatever the rotor angle, and the size field grows
+    // alike in every direction.
+    let path = PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("meshes")
+        .join("srm_full.toml");
+    let case = Case::from_file(&path).unwrap();
+    let rigid = case.geometry().unwrap().prepare_rigid().unwrap();
+    for deg in [0.0_f64, 7.5, 15.0, 22.5] {
+        let pl = coercive::mesh::Placement::rotation(
+            deg.to_radians(),
+            coercive::mesh::Point2::new(0.0, 0.0),
+        );
+        let mesh = rigid.mesh_at(&[("rotor", pl)]).unwrap();
+        let count = |name: &str| {
+            let r = mesh.region_by_name(name).unwrap();
+            mesh.triangle_regions().iter().filter(|&&t| t == r).count()
+        };
+        for (what, tol) in [("pole{}_tip", 0.05), ("magnet{}", 0.12)] {
+            let counts: Vec<usize> = (1..=6)
+                .map(|k| count(&what.replace("{}", &k.to_string())))
+                .collect();
+            let (lo, hi) = (
+                *counts.iter().min().unwrap() as f64,
+                *counts.iter().max().unwrap() as f64,
+            );
+            eprintln!(
+                "rotor {deg} deg: {what} triangles {counts:?}, spread {:.2} %",
+                100.0 * (hi - lo) / hi
+            );
+            // Measured: pole tips within 3.4 % at every angle, magnets within 9 % (Delaunay
+            // refinement order still differs between rotated copies).
+            assert!((hi - lo) / hi < tol, "{what}: {counts:?}");
+        }
+    }
 }
