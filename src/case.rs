@@ -252,6 +252,51 @@ struct RawCase {
     sweep: Option<Spanned<RawSweep>>,
     #[serde(default)]
     switching: Option<Spanned<RawSwitching>>,
+    #[serde(default)]
+    rotation: Option<Spanned<RawRotation>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawRotation {
+    group: Spanned<String>,
+    centre: Spanned<[f64; 2]>,
+    body: Spanned<Vec<Spanned<String>>>,
+    #[serde(default)]
+    airgap: Option<Spanned<String>>,
+    #[serde(default)]
+    sectors: Option<Spanned<i64>>,
+    from_deg: Spanned<f64>,
+    to_deg: Spanned<f64>,
+    step_deg: Spanned<f64>,
+    #[serde(default)]
+    phase: Option<Spanned<String>>,
+    #[serde(default)]
+    currents: Option<Spanned<Vec<f64>>>,
+}
+
+/// The optional `[rotation]` section: a moving part (rigid group) turned about a centre,
+/// with the torque on a body and the flux linkage of every winding at each angle, or, with
+/// a `phase`, the psi(theta, i) and T(theta, i) maps of that phase (see
+/// `docs/case-format.md`). Lengths in metres, angles in radians.
+#[derive(Clone, Debug, PartialEq)]
+pub struct CaseRotation {
+    /// The rigid group that turns.
+    pub group: String,
+    /// Centre of rotation (m).
+    pub centre_m: [f64; 2],
+    /// Regions whose torque is reported.
+    pub body: Vec<String>,
+    /// The air-gap band region for Arkkio's torque, if any.
+    pub airgap: Option<String>,
+    /// Number of sectors the model stands for (1: full cross-section).
+    pub sectors: u32,
+    /// Angles from the drawn position (rad), increasing.
+    pub angles_rad: Vec<f64>,
+    /// The phase whose maps are computed, if any.
+    pub phase: Option<String>,
+    /// Phase currents of the maps (A), as written.
+    pub currents_a: Vec<f64>,
 }
 
 #[derive(Deserialize)]
@@ -791,6 +836,7 @@ pub struct Case {
     boundaries: Vec<CaseBoundary>,
     sweep: Option<CaseSweep>,
     switching: Option<CaseSwitching>,
+    rotation: Option<CaseRotation>,
 }
 
 impl Case {
@@ -932,6 +978,11 @@ impl Case {
     /// The `[sweep]` section, if any (checked when the file was read).
     pub fn sweep(&self) -> Option<&CaseSweep> {
         self.sweep.as_ref()
+    }
+
+    /// The `[rotation]` section, if any (checked when the file was read).
+    pub fn rotation(&self) -> Option<&CaseRotation> {
+        self.rotation.as_ref()
     }
 
     /// The `[switching]` section, if any (checked when the file was read).
@@ -1232,6 +1283,10 @@ impl Reader<'_> {
             &raw.boundary,
             &spanned_materials,
         )?;
+        let rotation = match &raw.rotation {
+            None => None,
+            Some(r) => Some(self.rotation(unit, r, &geometry, &windings)?),
+        };
         if let (Some(sw), Some(raw_sw)) = (&switching, &raw.switching) {
             if !windings.iter().any(|w| w.name == sw.coil) {
                 return Err(CaseError::UnknownName {
@@ -1258,6 +1313,7 @@ impl Reader<'_> {
             boundaries,
             sweep,
             switching,
+            rotation,
         })
     }
 
@@ -1983,6 +2039,147 @@ impl Reader<'_> {
             values_m,
             offsets_m,
             body,
+        })
+    }
+
+    /// Checks a `[rotation]` against the geometry's rigid groups and regions and the
+    /// windings.
+    fn rotation(
+        &self,
+        unit: LengthUnit,
+        raw: &Spanned<RawRotation>,
+        geometry: &Geometry,
+        windings: &[Winding],
+    ) -> Result<CaseRotation, CaseError> {
+        let r = raw.get_ref();
+        if !geometry
+            .rigid_groups
+            .iter()
+            .any(|g| &g.name == r.group.get_ref())
+        {
+            return Err(CaseError::UnknownName {
+                kind: "rigid group",
+                name: r.group.get_ref().clone(),
+                position: self.pos(&r.group),
+            });
+        }
+        let region = |name: &Spanned<String>| {
+            if geometry.regions.iter().any(|g| &g.name == name.get_ref()) {
+                Ok(name.get_ref().clone())
+            } else {
+                Err(CaseError::UnknownName {
+                    kind: "region",
+                    name: name.get_ref().clone(),
+                    position: self.pos(name),
+                })
+            }
+        };
+        let body = r
+            .body
+            .get_ref()
+            .iter()
+            .map(region)
+            .collect::<Result<Vec<_>, _>>()?;
+        if body.is_empty() {
+            return Err(self.invalid(&r.body, "rotation `body` names no region".into()));
+        }
+        let airgap = r.airgap.as_ref().map(region).transpose()?;
+        let phase = match &r.phase {
+            None => None,
+            Some(p) if windings.iter().any(|w| &w.name == p.get_ref()) => Some(p.get_ref().clone()),
+            Some(p) => {
+                return Err(CaseError::UnknownName {
+                    kind: "winding",
+                    name: p.get_ref().clone(),
+                    position: self.pos(p),
+                })
+            }
+        };
+        let [cx, cy] = *r.centre.get_ref();
+        if !(cx.is_finite() && cy.is_finite()) {
+            return Err(self.invalid(&r.centre, "rotation `centre` must be finite".into()));
+        }
+        let sectors = match &r.sectors {
+            None => 1,
+            Some(n) if (1..=360).contains(n.get_ref()) => *n.get_ref() as u32,
+            Some(n) => {
+                return Err(self.invalid(
+                    n,
+                    format!(
+                        "rotation `sectors` must be a whole number from 1 to 360 (the model is \
+                         360/sectors degrees of the machine), got {}",
+                        n.get_ref()
+                    ),
+                ))
+            }
+        };
+        let (from, to, step) = (
+            *r.from_deg.get_ref(),
+            *r.to_deg.get_ref(),
+            *r.step_deg.get_ref(),
+        );
+        for (v, s) in [(from, &r.from_deg), (to, &r.to_deg)] {
+            if !(v.is_finite() && v.abs() <= 360.0) {
+                return Err(self.invalid(
+                    s,
+                    format!("rotation angles must lie within -360..360 degrees, got {v}"),
+                ));
+            }
+        }
+        if to <= from {
+            return Err(self.invalid(
+                &r.to_deg,
+                format!("rotation `to_deg` ({to}) must exceed `from_deg` ({from})"),
+            ));
+        }
+        if !(step.is_finite() && step > 0.0 && (to - from) / step <= 10_000.0) {
+            return Err(self.invalid(
+                &r.step_deg,
+                format!(
+                    "rotation `step_deg` must be positive and give at most 10 000 steps, got {step}"
+                ),
+            ));
+        }
+        let count = ((to - from) / step * (1.0 + 1e-12)).floor() as usize;
+        let angles_rad: Vec<f64> = (0..=count)
+            .map(|k| (from + k as f64 * step).to_radians())
+            .collect();
+        let currents_a = match (&r.currents, &phase) {
+            (None, _) => Vec::new(),
+            (Some(c), None) => {
+                return Err(self.invalid(c, "rotation `currents` go with a `phase`".into()))
+            }
+            (Some(c), Some(_)) => {
+                let v = c.get_ref().clone();
+                if let Some(x) = v.iter().find(|x| !x.is_finite()) {
+                    return Err(self.invalid(c, format!("rotation current {x} is not finite")));
+                }
+                let mut sorted = v.clone();
+                sorted.sort_by(f64::total_cmp);
+                if sorted.windows(2).any(|w| w[0] == w[1]) || v.is_empty() {
+                    return Err(self.invalid(
+                        c,
+                        "rotation `currents` must be distinct and not empty".into(),
+                    ));
+                }
+                v
+            }
+        };
+        if phase.is_some() && (currents_a.is_empty() || angles_rad.len() < 2) {
+            return Err(self.invalid(
+                raw,
+                "a rotation map (`phase`) needs `currents` and at least two angles".into(),
+            ));
+        }
+        Ok(CaseRotation {
+            group: r.group.get_ref().clone(),
+            centre_m: [unit.to_metres(cx), unit.to_metres(cy)],
+            body,
+            airgap,
+            sectors,
+            angles_rad,
+            phase,
+            currents_a,
         })
     }
 

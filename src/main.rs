@@ -29,7 +29,8 @@ enum Command {
     Mesh(MeshArgs),
     /// Mesh and solve a case; print unknowns, Newton iterations, residual, energy, co-energy
     /// and the peak |B| of each region; then run the case's `[sweep]`, if any (force on a
-    /// body versus the position of a rigid group, by three methods).
+    /// body versus the position of a rigid group, by three methods), and its `[rotation]`,
+    /// if any (torque and flux linkage versus the rotor angle, or the maps of one phase).
     Solve(SolveArgs),
     /// List the material presets with their key numbers and published sources; with `--svg`,
     /// plot each soft material's B-H curve and each magnet's demagnetisation line.
@@ -159,6 +160,16 @@ fn run_solve(args: &SolveArgs) -> Result<(), String> {
                 obj.insert("cautions".into(), CAUTIONS.join(" ").into());
             }
         }
+        if case.rotation().is_some() {
+            let rotation =
+                coercive::solve::run_rotation(&case).map_err(|e| format!("{name}: {e}"))?;
+            if let Some(obj) = value.as_object_mut() {
+                obj.insert(
+                    "rotation".into(),
+                    serde_json::to_value(&rotation).expect("a rotation study serialises"),
+                );
+            }
+        }
         if case.switching().is_some() {
             let report = run_switching(&case, args)?;
             if let Some(obj) = value.as_object_mut() {
@@ -189,6 +200,12 @@ fn run_solve(args: &SolveArgs) -> Result<(), String> {
             let sweep = coercive::solve::run_sweep(&case).map_err(|e| format!("{name}: {e}"))?;
             say!();
             say!("{sweep}");
+        }
+        if case.rotation().is_some() {
+            let rotation =
+                coercive::solve::run_rotation(&case).map_err(|e| format!("{name}: {e}"))?;
+            say!();
+            say!("{rotation}");
         }
         if case.switching().is_some() {
             let report = run_switching(&case, args)?;

@@ -8,8 +8,11 @@ use coercive_mesh::Mesh;
 use thiserror::Error;
 
 use crate::case::{Case, CaseBoundary, CaseFormulation, SweepParameter};
-use crate::study::{force_sweep, ForceSweepSettings, StudyError, TranslationPoint};
-use coercive_post::force::{Body, ForceSettings};
+use crate::study::{
+    force_sweep, machine_map, torque_sweep, ForceSweepSettings, MachineMap, Reciprocity,
+    StrokeEnergy, StudyError, TorquePoint, TorqueSweepSettings, TranslationPoint,
+};
+use coercive_post::force::{AirGap, Body, ForceSettings};
 
 /// What can go wrong while turning a case into a model. The case's own sections were checked
 /// when it was read (every material, winding and boundary entry, with line and column); what
@@ -324,6 +327,9 @@ pub enum SweepError {
     /// The case has no `[sweep]` section.
     #[error("the case has no [sweep] section")]
     NoSweep,
+    /// The case has no `[rotation]` section.
+    #[error("the case has no [rotation] section")]
+    NoRotation,
     /// Preparing the rigid mesher failed.
     #[error("sweep: {0}")]
     Mesh(#[from] crate::case::CaseError),
@@ -427,6 +433,186 @@ pub fn run_sweep(case: &Case) -> Result<SweepSummary, SweepError> {
         rows,
         seconds: started.elapsed().as_secs_f64(),
     })
+}
+
+/// The result of a case's `[rotation]` section: torque and flux linkage versus angle, or the
+/// maps of one phase with their derived figures. Whole machine (the model's values times the
+/// number of sectors), stack depth (planar): N m, Wb, J. Counter-clockwise torque positive.
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct RotationSummary {
+    /// The rigid group turned.
+    pub group: String,
+    /// Sectors the model stands for.
+    pub sectors: u32,
+    /// Without a `phase`: one point per angle.
+    pub points: Vec<TorquePoint>,
+    /// With a `phase`: the maps.
+    pub map: Option<MachineMap>,
+    /// With a `phase`: the energy converted over the stroke at each non-zero current.
+    pub stroke_energies: Vec<StrokeEnergy>,
+    /// With a `phase`: the reciprocity check dT/di = dpsi/dtheta.
+    pub reciprocity: Option<Reciprocity>,
+    /// Wall-clock time (s).
+    pub seconds: f64,
+}
+
+/// Runs the case's `[rotation]`: turns the rigid group through the angles (re-meshing only
+/// around it) with the same materials, windings and boundaries as the plain solve, and
+/// reports the torque on the body (eggshell, mid-line stress, Arkkio's band if named) and
+/// the flux linkage of every winding; with a `phase`, the psi(theta, i) and T(theta, i)
+/// maps of that phase over the currents, with the energy per stroke both ways and the
+/// reciprocity check.
+///
+/// # Errors
+/// [`SweepError`] (no `[rotation]` section, meshing, set-up, a failing point).
+pub fn run_rotation(case: &Case) -> Result<RotationSummary, SweepError> {
+    let started = std::time::Instant::now();
+    let rot = case.rotation().ok_or(SweepError::NoRotation)?;
+    let geometry = case.geometry()?;
+    let rigid = geometry
+        .prepare_rigid()
+        .map_err(|source| crate::case::CaseError::Mesh {
+            source,
+            position: None,
+        })?;
+    let drawn = rigid
+        .mesh_at(&[])
+        .map_err(|source| crate::case::CaseError::Mesh {
+            source,
+            position: None,
+        })?;
+    model_from_case(case, drawn)?;
+    let build = |mesh: Mesh| study_model(case, mesh);
+    let settings = TorqueSweepSettings {
+        group: rot.group.clone(),
+        centre: rot.centre_m,
+        body: Body::new(&rot.body),
+        gap: rot.airgap.as_ref().map(|name| AirGap::Region {
+            name: name.clone(),
+            centre: rot.centre_m,
+        }),
+        sectors: rot.sectors,
+        coenergy_step_rad: None,
+        windings: Vec::new(),
+        force: ForceSettings::default(),
+    };
+    let (points, map) = match &rot.phase {
+        None => (
+            torque_sweep(&rigid, &rot.angles_rad, &[], &settings, build)?,
+            None,
+        ),
+        Some(phase) => (
+            Vec::new(),
+            Some(machine_map(
+                &rigid,
+                &rot.angles_rad,
+                &rot.currents_a,
+                phase,
+                &settings,
+                build,
+            )?),
+        ),
+    };
+    let stroke_energies = map.as_ref().map_or(Vec::new(), |m| {
+        (0..m.currents_a.len())
+            .filter(|&c| m.currents_a[c] != 0.0)
+            .filter_map(|c| m.stroke_energy(c))
+            .collect()
+    });
+    let reciprocity = map.as_ref().map(MachineMap::reciprocity);
+    Ok(RotationSummary {
+        group: rot.group.clone(),
+        sectors: rot.sectors,
+        points,
+        map,
+        stroke_energies,
+        reciprocity,
+        seconds: started.elapsed().as_secs_f64(),
+    })
+}
+
+impl std::fmt::Display for RotationSummary {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let whole = if self.sectors == 1 {
+            "whole machine".to_string()
+        } else {
+            format!("whole machine: {} sectors", self.sectors)
+        };
+        if let Some(m) = &self.map {
+            writeln!(
+                f,
+                "maps of `{}` turning `{}` ({whole}; N m and Wb for the stack depth; \
+                 counter-clockwise torque positive)",
+                m.phase, self.group
+            )?;
+            write!(f, "{:>10}", "angle (deg)")?;
+            for i in &m.currents_a {
+                write!(f, " | {:>9} A: psi (Wb), T (N m)", i)?;
+            }
+            writeln!(f)?;
+            for (a, theta) in m.angles_rad.iter().enumerate() {
+                write!(f, "{:>10.3}", theta.to_degrees())?;
+                for c in 0..m.currents_a.len() {
+                    write!(
+                        f,
+                        " | {:>14.6} {:>14.5}",
+                        m.flux_linkage_wb[a][c], m.torque_nm[a][c]
+                    )?;
+                }
+                writeln!(f)?;
+            }
+            for e in &self.stroke_energies {
+                writeln!(
+                    f,
+                    "stroke at {} A: psi-i loop area {:.5} J, integral of torque beyond cogging \
+                     {:.5} J, cogging {:.5} J, average torque {:.5} N m",
+                    e.current_a,
+                    e.loop_area_j,
+                    e.torque_integral_j,
+                    e.cogging_integral_j,
+                    e.average_torque_nm
+                )?;
+            }
+            if let Some(r) = &self.reciprocity {
+                writeln!(
+                    f,
+                    "reciprocity dT/di = dpsi/dtheta: largest difference {:.3} % of the peak \
+                     {:.4e} Wb (cell form), {:.3} % pointwise",
+                    100.0 * r.relative(),
+                    r.peak_wb,
+                    100.0 * r.relative_pointwise()
+                )?;
+            }
+        } else {
+            writeln!(
+                f,
+                "rotation of `{}` ({whole}; N m and Wb for the stack depth; counter-clockwise \
+                 torque positive)",
+                self.group
+            )?;
+            writeln!(
+                f,
+                "{:>10} | {:>14} | {:>14} | {:>14} | {:>9} | flux linkage (Wb)",
+                "angle (deg)", "eggshell (N m)", "stress (N m)", "Arkkio (N m)", "spread (%)"
+            )?;
+            for p in &self.points {
+                write!(
+                    f,
+                    "{:>10.3} | {:>14.5} | {:>14.5} | {:>14} | {:>9.2} |",
+                    p.angle_rad.to_degrees(),
+                    p.eggshell_nm,
+                    p.stress_nm,
+                    p.arkkio_nm.map_or("-".into(), |t| format!("{t:.5}")),
+                    100.0 * p.spread
+                )?;
+                for (w, psi) in &p.flux_linkage_wb {
+                    write!(f, " {w} {psi:.6}")?;
+                }
+                writeln!(f)?;
+            }
+        }
+        write!(f, "rotation study in {:.1} s", self.seconds)
+    }
 }
 
 impl std::fmt::Display for SweepSummary {

@@ -5,11 +5,15 @@
 //! air around it ([`coercive_mesh::RigidMesher`]), so force curves carry no re-meshing noise
 //! from the moving parts and per-triangle states stay valid.
 
-use coercive_fem::{FemError, MagnetState, Model, NewtonSettings, Solver};
-use coercive_mesh::{Mesh, MeshError, Placement, RigidMesher};
-use coercive_post::force::{
-    coenergy_force_richardson, force_on, Body, BodyRole, ForceMethod, ForceSettings,
+use coercive_fem::{
+    FemError, MagnetDirection, MagnetState, Material, Model, NewtonSettings, Solution, Solver,
 };
+use coercive_mesh::{Mesh, MeshError, Placement, Point2, RegionId, RigidMesher};
+use coercive_post::force::{
+    arkkio_torque, coenergy_force_richardson, force_on, AirGap, Body, BodyRole, ForceMethod,
+    ForceSettings,
+};
+use coercive_post::winding::flux_linkage;
 use coercive_post::PostError;
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
@@ -375,4 +379,721 @@ fn element_size_next_to(mesh: &Mesh, regions: &[String]) -> f64 {
         .or_else(|| mean_edge(&|t| inside[regs[t].index()]))
         .or_else(|| mean_edge(&|_| true))
         .unwrap_or(0.0)
+}
+
+/// Settings of [`torque_sweep`]: a rigid group (the rotor) turned about a centre.
+#[derive(Clone, Debug, PartialEq)]
+pub struct TorqueSweepSettings {
+    /// The rigid group that turns (the rotor).
+    pub group: String,
+    /// Centre of rotation (m).
+    pub centre: [f64; 2],
+    /// The body whose torque is reported (e.g. the rotor iron, or a rotor magnet).
+    pub body: Body,
+    /// The air-gap band for Arkkio's torque (a region or an annulus of air between the
+    /// moving part and the fixed parts), if the mesh has one.
+    pub gap: Option<AirGap>,
+    /// Number of sectors the model stands for (1 for a full cross-section, n for a periodic
+    /// or anti-periodic sector of 360/n degrees). Every torque and flux linkage reported is
+    /// the model's value times `sectors`: the whole machine.
+    pub sectors: u32,
+    /// Co-energy torque dW'/dtheta at constant current from two extra solves at plus and
+    /// minus this angle (rad), or `None` to skip it (a third of the cost).
+    pub coenergy_step_rad: Option<f64>,
+    /// Windings whose flux linkage is reported (all windings of the model when empty).
+    pub windings: Vec<String>,
+    /// Settings of the stress methods (the torque centre is set to `centre`).
+    pub force: ForceSettings,
+}
+
+/// One set of winding currents of a sweep point: (winding name, current per turn in A);
+/// windings not listed keep the model's current.
+pub type Currents = Vec<(String, f64)>;
+
+/// The torque on the body and the flux linkages at one (angle, currents) point of a
+/// [`torque_sweep`], for the whole machine (the model's values times
+/// [`TorqueSweepSettings::sectors`]) and the stack depth (planar): N m and Wb.
+/// Counter-clockwise torque is positive.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct TorquePoint {
+    /// Index of the angle in the sweep's list.
+    pub angle_index: usize,
+    /// Index of the current set in the sweep's list (0 when none was given).
+    pub current_index: usize,
+    /// Rotation of the group from its drawn position (rad, counter-clockwise).
+    pub angle_rad: f64,
+    /// The currents set at this point (A per turn).
+    pub currents_a: Currents,
+    /// Whole-machine torque by the eggshell (virtual work over the air layer) (N m).
+    pub eggshell_nm: f64,
+    /// Whole-machine torque by the Maxwell stress on the mid-line of the air layer (N m).
+    pub stress_nm: f64,
+    /// Whole-machine torque by Arkkio's method over the air-gap band (N m), if a band was
+    /// given.
+    pub arkkio_nm: Option<f64>,
+    /// Whole-machine co-energy torque dW'/dtheta at constant current (N m), if asked.
+    pub coenergy_nm: Option<f64>,
+    /// Relative spread of the available torque values (dimensionless).
+    pub spread: f64,
+    /// True when the spread exceeds [`ForceSettings::spread_warning`].
+    pub warning: bool,
+    /// Whole-machine flux linkage of each reported winding (Wb).
+    pub flux_linkage_wb: Vec<(String, f64)>,
+    /// Whole-machine co-energy (J) for the stack depth.
+    pub coenergy_j: f64,
+    /// Newton iterations of the point's solve.
+    pub newton_iterations: usize,
+    /// Triangles of the point's mesh.
+    pub triangles: usize,
+}
+
+/// `material` as placed by `placement`: easy axes and principal directions turn with the
+/// part, pattern centres move with it. Isotropic materials are returned unchanged.
+pub fn placed_material(material: &Material, placement: &Placement) -> Material {
+    let turn = |d: &MagnetDirection| -> MagnetDirection {
+        let moved = |c: [f64; 2]| {
+            let p = placement.apply(Point2::new(c[0], c[1]));
+            [p.x, p.y]
+        };
+        match d {
+            MagnetDirection::Fixed { angle } => MagnetDirection::Fixed {
+                angle: angle + placement.rotation_rad,
+            },
+            MagnetDirection::Radial { centre, outward } => MagnetDirection::Radial {
+                centre: moved(*centre),
+                outward: *outward,
+            },
+            MagnetDirection::Azimuthal {
+                centre,
+                counter_clockwise,
+            } => MagnetDirection::Azimuthal {
+                centre: moved(*centre),
+                counter_clockwise: *counter_clockwise,
+            },
+            MagnetDirection::Parallel { centre, outward } => MagnetDirection::Parallel {
+                centre: moved(*centre),
+                outward: *outward,
+            },
+        }
+    };
+    match material {
+        Material::Anisotropic {
+            parallel,
+            perpendicular,
+            angle,
+        } => Material::Anisotropic {
+            parallel: *parallel,
+            perpendicular: *perpendicular,
+            angle: angle + placement.rotation_rad,
+        },
+        Material::Magnet(m) => {
+            let mut m = m.clone();
+            m.direction = turn(&m.direction);
+            Material::Magnet(m)
+        }
+        Material::Hysteretic(m) => {
+            let mut m = m.clone();
+            m.direction = turn(&m.direction);
+            Material::Hysteretic(m)
+        }
+        other => other.clone(),
+    }
+}
+
+/// The model with the materials of the moving part's regions placed by `placement` (see
+/// [`placed_material`]); the group's regions are those of its triangles, which come first
+/// in every mesh of the [`RigidMesher`].
+fn with_group_placed(
+    model: Model,
+    group_triangles: usize,
+    placement: &Placement,
+) -> Result<Model, FemError> {
+    if placement.rotation_rad == 0.0 && placement.translation == Point2::default() {
+        return Ok(model);
+    }
+    let mesh = model.mesh().clone();
+    let mut regions: Vec<RegionId> = mesh.triangle_regions()[..group_triangles].to_vec();
+    regions.sort_unstable();
+    regions.dedup();
+    let mut builder = None;
+    for r in regions {
+        let m = model.material(r);
+        let placed = placed_material(m, placement);
+        if &placed != m {
+            let b = builder.take().unwrap_or_else(|| model.to_builder());
+            builder = Some(b.replace_material(model.region_name(r), placed));
+        }
+    }
+    match builder {
+        Some(b) => b.build(),
+        None => Ok(model),
+    }
+}
+
+/// Turns a rigid group through `angles_rad` (counter-clockwise from its drawn position,
+/// about [`TorqueSweepSettings::centre`]) and reports, at each angle and for each set of
+/// winding currents in `currents` (the model's own currents when empty), the torque on the
+/// body by the eggshell, the mid-line stress, Arkkio's band (if given) and the co-energy
+/// difference (if asked), with the flux linkage of each winding; all for the whole machine.
+///
+/// The rotation counterpart of [`force_sweep`]: the group is meshed once and re-placed with
+/// [`Placement::rotation`], only the air around it is meshed again ([`RigidMesher`]), and
+/// `build` turns each mesh into a model exactly as for a translation sweep; materials of
+/// the moving part with a direction (magnets, anisotropic steel) turn with it.
+///
+/// Angles run in parallel (rayon); the current sets of one angle share its mesh and its
+/// symbolic factorisation and run in the given order, each warm-started from the previous
+/// solution. Every point is a pure function of its inputs, so the result does not depend
+/// on the number of threads. Points come angle by angle, currents within an angle.
+///
+/// # Errors
+/// [`StudyError::Invalid`] for a zero sector count, a non-finite angle or step, a winding
+/// that is not in the model, or a band whose coverage disagrees with `sectors`; otherwise
+/// the first failing point's error, naming its angle and currents.
+pub fn torque_sweep<B>(
+    rigid: &RigidMesher,
+    angles_rad: &[f64],
+    currents: &[Currents],
+    settings: &TorqueSweepSettings,
+    build: B,
+) -> Result<Vec<TorquePoint>, StudyError>
+where
+    B: Fn(Mesh) -> Result<Model, FemError> + Sync,
+{
+    if settings.sectors == 0 {
+        return Err(StudyError::Invalid {
+            what: "sectors".into(),
+            reason: "the model stands for at least one sector".into(),
+        });
+    }
+    if let Some(a) = angles_rad.iter().find(|a| !a.is_finite()) {
+        return Err(StudyError::Invalid {
+            what: "rotation angle".into(),
+            reason: format!("must be finite, got {a} rad"),
+        });
+    }
+    if let Some(h) = settings.coenergy_step_rad {
+        if !(h.is_finite() && h > 0.0) {
+            return Err(StudyError::Invalid {
+                what: "co-energy angle step".into(),
+                reason: format!("must be a positive finite angle, got {h} rad"),
+            });
+        }
+    }
+    let sets: Vec<Currents> = if currents.is_empty() {
+        vec![Vec::new()]
+    } else {
+        currents.to_vec()
+    };
+    let rows: Result<Vec<Vec<TorquePoint>>, StudyError> = angles_rad
+        .par_iter()
+        .enumerate()
+        .map(|(index, &angle)| torque_at_angle(rigid, index, angle, &sets, settings, &build))
+        .collect();
+    Ok(rows?.into_iter().flatten().collect())
+}
+
+fn torque_at_angle<B>(
+    rigid: &RigidMesher,
+    angle_index: usize,
+    angle: f64,
+    sets: &[Currents],
+    settings: &TorqueSweepSettings,
+    build: &B,
+) -> Result<Vec<TorquePoint>, StudyError>
+where
+    B: Fn(Mesh) -> Result<Model, FemError> + Sync,
+{
+    let label = |currents: &Currents| {
+        let mut s = format!("angle {:.4} deg", angle.to_degrees());
+        for (w, i) in currents {
+            s.push_str(&format!(", {w} {i} A"));
+        }
+        s
+    };
+    let solve_error = |currents: &Currents, source: FemError| StudyError::Solve {
+        index: angle_index,
+        label: label(currents),
+        source: Box::new(source),
+    };
+    let post_error = |currents: &Currents, source: PostError| StudyError::Post {
+        index: angle_index,
+        label: label(currents),
+        source: Box::new(source),
+    };
+    let centre = Point2::new(settings.centre[0], settings.centre[1]);
+    // A model and its solver at `angle` (the model carries the drawn currents).
+    let model_at = |a: f64| -> Result<(Model, Solver), StudyError> {
+        let placement = Placement::rotation(a, centre);
+        let mesh = rigid
+            .mesh_at(&[(settings.group.as_str(), placement)])
+            .map_err(|source| StudyError::Mesh {
+                index: angle_index,
+                label: label(&Vec::new()),
+                source,
+            })?;
+        let model = build(mesh)
+            .and_then(|m| with_group_placed(m, rigid.group_triangle_count(), &placement))
+            .map_err(|e| solve_error(&Vec::new(), e))?;
+        let solver = Solver::new(&model).map_err(|e| solve_error(&Vec::new(), e))?;
+        Ok((model, solver))
+    };
+    let with_currents = |model: &Model, currents: &Currents| -> Result<Model, StudyError> {
+        let mut m = model.clone();
+        for (w, i) in currents {
+            m = m
+                .with_winding_current(w, *i)
+                .map_err(|e| solve_error(currents, e))?;
+        }
+        Ok(m)
+    };
+    let (model, solver) = model_at(angle)?;
+    let side_models = match settings.coenergy_step_rad {
+        Some(h) => Some((model_at(angle - h)?, model_at(angle + h)?)),
+        None => None,
+    };
+    let windings: Vec<String> = if settings.windings.is_empty() {
+        model.windings().iter().map(|w| w.name.clone()).collect()
+    } else {
+        settings.windings.clone()
+    };
+    let n = f64::from(settings.sectors);
+    let newton = NewtonSettings::default();
+    let force_settings = ForceSettings {
+        torque_centre: settings.centre,
+        ..settings.force.clone()
+    };
+    let mut previous: Option<Solution> = None;
+    let mut side_previous: Option<(Solution, Solution)> = None;
+    let mut out = Vec::with_capacity(sets.len());
+    for (current_index, currents) in sets.iter().enumerate() {
+        let m = with_currents(&model, currents)?;
+        let sol = match &previous {
+            Some(p) => solver.solve_from(&m, p, &newton),
+            None => solver.solve(&m, &newton),
+        }
+        .map_err(|e| solve_error(currents, e))?;
+        let depth = sol.depth_m().unwrap_or(1.0);
+        let scale = n * depth;
+        let f =
+            force_on(&sol, &settings.body, &force_settings).map_err(|e| post_error(currents, e))?;
+        let eggshell_nm = f.torque() * scale;
+        let stress_nm = f
+            .by(&ForceMethod::StressMidLine)
+            .map(|m| m.torque * scale)
+            .unwrap_or(f64::NAN);
+        let arkkio_nm = match &settings.gap {
+            Some(gap) => {
+                let a = arkkio_torque(&sol, gap).map_err(|e| post_error(currents, e))?;
+                if a.sectors != settings.sectors {
+                    return Err(StudyError::Invalid {
+                        what: "sectors".into(),
+                        reason: format!(
+                            "the air-gap band covers 1/{} of the circle but the study \
+                             says the model is 1/{} of the machine",
+                            a.sectors, settings.sectors
+                        ),
+                    });
+                }
+                Some(a.torque * scale)
+            }
+            None => None,
+        };
+        let coenergy_nm = match (&side_models, settings.coenergy_step_rad) {
+            (Some(((mb, sb), (ma, sa))), Some(h)) => {
+                let (mb, ma) = (with_currents(mb, currents)?, with_currents(ma, currents)?);
+                let (before, after) = match &side_previous {
+                    Some((pb, pa)) => (
+                        sb.solve_from(&mb, pb, &newton),
+                        sa.solve_from(&ma, pa, &newton),
+                    ),
+                    None => (sb.solve(&mb, &newton), sa.solve(&ma, &newton)),
+                };
+                let (before, after) = (
+                    before.map_err(|e| solve_error(currents, e))?,
+                    after.map_err(|e| solve_error(currents, e))?,
+                );
+                let t = (after.coenergy() - before.coenergy()) / (2.0 * h) * scale;
+                side_previous = Some((before, after));
+                Some(t)
+            }
+            _ => None,
+        };
+        let mut values = vec![eggshell_nm, stress_nm];
+        values.extend(arkkio_nm);
+        values.extend(coenergy_nm);
+        let spread = coercive_post::force::relative_spread(&values, 0.0);
+        let mut flux_linkage_wb = Vec::with_capacity(windings.len());
+        for w in &windings {
+            let psi = flux_linkage(&sol, w).map_err(|e| post_error(currents, e))?;
+            flux_linkage_wb.push((w.clone(), n * psi.total_wb));
+        }
+        out.push(TorquePoint {
+            angle_index,
+            current_index,
+            angle_rad: angle,
+            currents_a: currents.clone(),
+            eggshell_nm,
+            stress_nm,
+            arkkio_nm,
+            coenergy_nm,
+            spread,
+            warning: spread > settings.force.spread_warning,
+            flux_linkage_wb,
+            coenergy_j: sol.coenergy() * scale,
+            newton_iterations: sol.newton_report().iterations,
+            triangles: m.mesh().triangles().len(),
+        });
+        previous = Some(sol);
+    }
+    Ok(out)
+}
+
+/// The flux-linkage and torque maps psi(theta, i) and T(theta, i) of one phase of a
+/// machine, for the whole machine and the stack depth (Wb, N m), from [`machine_map`].
+/// Indexed `[angle][current]`; the currents are sorted and hold zero (the cogging column).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct MachineMap {
+    /// The phase (winding) whose current is varied.
+    pub phase: String,
+    /// Number of sectors the model stands for (the values are already multiplied by it).
+    pub sectors: u32,
+    /// Rotor angles from the drawn position (rad), increasing.
+    pub angles_rad: Vec<f64>,
+    /// Phase currents per turn (A), increasing, zero included.
+    pub currents_a: Vec<f64>,
+    /// Flux linkage of the phase (Wb), `[angle][current]`.
+    pub flux_linkage_wb: Vec<Vec<f64>>,
+    /// Torque on the body by the eggshell (virtual work over the air layer) (N m).
+    pub torque_nm: Vec<Vec<f64>>,
+    /// Torque by Arkkio's method over the air-gap band (N m), if the study has a band.
+    pub arkkio_nm: Option<Vec<Vec<f64>>>,
+    /// Newton iterations of each point.
+    pub newton_iterations: Vec<Vec<usize>>,
+}
+
+/// The energy converted over the stroke of a [`MachineMap`] (from its first to its last
+/// angle) at one flat-top current, two ways (J, whole machine).
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct StrokeEnergy {
+    /// The current (A).
+    pub current_a: f64,
+    /// Area enclosed in the psi-i plane: integral from 0 to i of psi(last angle) - psi(first
+    /// angle) di (J).
+    pub loop_area_j: f64,
+    /// Integral over the stroke of T(theta, i) - T(theta, 0), the torque beyond cogging (J).
+    pub torque_integral_j: f64,
+    /// Integral over the stroke of the cogging torque T(theta, 0) (J): the magnets' own
+    /// co-energy change, which no current supplies.
+    pub cogging_integral_j: f64,
+    /// Average static torque over the stroke at this current, cogging included (N m).
+    pub average_torque_nm: f64,
+}
+
+/// The reciprocity check of a [`MachineMap`]: dT/di = dpsi/dtheta (both are the mixed
+/// derivative of the co-energy W'(theta, i); Miller, Switched Reluctance Motors and their
+/// Control, 1993, ch. 3) at every interior grid point.
+///
+/// Two forms: pointwise central differences, and the cell form, which compares the same
+/// quantity on both sides: the central difference of psi over [theta - h, theta + h]
+/// averaged over [i - k, i + k] (trapezoid) against the central difference of T over
+/// [i - k, i + k] averaged over [theta - h, theta + h]. Both sides of the cell form are the
+/// cell average of the mixed derivative to the trapezoid error, also where psi bends
+/// sharply with the angle (the pole edges meeting), where the pointwise form compares the
+/// slope at one angle with a secant across the bend.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Reciprocity {
+    /// Largest |dT/di - dpsi/dtheta| over the interior points, cell form (Wb).
+    pub largest_difference_wb: f64,
+    /// Largest |dT/di - dpsi/dtheta| over the interior points, pointwise central
+    /// differences (Wb).
+    pub largest_pointwise_difference_wb: f64,
+    /// The largest |dT/di| or |dpsi/dtheta| over the interior points (Wb).
+    pub peak_wb: f64,
+    /// Angle (rad) and current (A) of the largest difference (cell form).
+    pub at: (f64, f64),
+}
+
+impl Reciprocity {
+    /// `largest_difference_wb / peak_wb` (dimensionless).
+    pub fn relative(&self) -> f64 {
+        if self.peak_wb > 0.0 {
+            self.largest_difference_wb / self.peak_wb
+        } else {
+            0.0
+        }
+    }
+
+    /// `largest_pointwise_difference_wb / peak_wb` (dimensionless).
+    pub fn relative_pointwise(&self) -> f64 {
+        if self.peak_wb > 0.0 {
+            self.largest_pointwise_difference_wb / self.peak_wb
+        } else {
+            0.0
+        }
+    }
+}
+
+/// Integral of samples `y` over increasing abscissae `x`: composite Simpson's rule on a
+/// uniform grid (with Simpson's 3/8 rule on the last three intervals for an odd count),
+/// the trapezoid rule otherwise or for two points.
+fn integrate(x: &[f64], y: &[f64]) -> f64 {
+    let n = x.len();
+    if n < 2 {
+        return 0.0;
+    }
+    let h = (x[n - 1] - x[0]) / (n - 1) as f64;
+    let uniform = x
+        .windows(2)
+        .all(|w| ((w[1] - w[0]) - h).abs() <= 1e-9 * h.abs());
+    if !uniform || n < 3 {
+        return x
+            .windows(2)
+            .zip(y.windows(2))
+            .map(|(a, b)| 0.5 * (a[1] - a[0]) * (b[0] + b[1]))
+            .sum();
+    }
+    let intervals = n - 1;
+    let (simpson_end, tail) = if intervals % 2 == 0 {
+        (n - 1, false)
+    } else {
+        (n - 4, true)
+    };
+    let mut s = 0.0;
+    let mut k = 0;
+    while k + 2 <= simpson_end {
+        s += h / 3.0 * (y[k] + 4.0 * y[k + 1] + y[k + 2]);
+        k += 2;
+    }
+    if tail {
+        let m = n - 4;
+        s += 3.0 * h / 8.0 * (y[m] + 3.0 * y[m + 1] + 3.0 * y[m + 2] + y[m + 3]);
+    }
+    s
+}
+
+impl MachineMap {
+    /// Index of the zero current.
+    fn zero(&self) -> usize {
+        self.currents_a
+            .iter()
+            .position(|&i| i == 0.0)
+            .unwrap_or_default()
+    }
+
+    /// The cogging torque T(theta, 0) at each angle (N m).
+    pub fn cogging_nm(&self) -> Vec<f64> {
+        let z = self.zero();
+        self.torque_nm.iter().map(|row| row[z]).collect()
+    }
+
+    /// The energy converted over the stroke at the current of index `current_index`, as the
+    /// psi-i loop area and as the integral of the torque (they agree for an exact map, since
+    /// both are the change of co-energy at constant current), with the same quadrature rule
+    /// on the map's own grid. `None` for an index outside the currents.
+    pub fn stroke_energy(&self, current_index: usize) -> Option<StrokeEnergy> {
+        let &current_a = self.currents_a.get(current_index)?;
+        let z = self.zero();
+        let last = self.angles_rad.len() - 1;
+        let (lo, hi) = (z.min(current_index), z.max(current_index));
+        let sign = if current_index >= z { 1.0 } else { -1.0 };
+        let i = &self.currents_a[lo..=hi];
+        let dpsi: Vec<f64> = (lo..=hi)
+            .map(|c| self.flux_linkage_wb[last][c] - self.flux_linkage_wb[0][c])
+            .collect();
+        let loop_area_j = sign * integrate(i, &dpsi);
+        let beyond: Vec<f64> = self
+            .torque_nm
+            .iter()
+            .map(|row| row[current_index] - row[z])
+            .collect();
+        let torque_integral_j = integrate(&self.angles_rad, &beyond);
+        let cogging_integral_j = integrate(&self.angles_rad, &self.cogging_nm());
+        let stroke = self.angles_rad[last] - self.angles_rad[0];
+        let total: Vec<f64> = self.torque_nm.iter().map(|r| r[current_index]).collect();
+        Some(StrokeEnergy {
+            current_a,
+            loop_area_j,
+            torque_integral_j,
+            cogging_integral_j,
+            average_torque_nm: integrate(&self.angles_rad, &total) / stroke,
+        })
+    }
+
+    /// The reciprocity check dT/di = dpsi/dtheta over the interior grid points (a map with
+    /// fewer than three angles or currents has none: the result is all zeros).
+    pub fn reciprocity(&self) -> Reciprocity {
+        let (na, nc) = (self.angles_rad.len(), self.currents_a.len());
+        let mut r = Reciprocity {
+            largest_difference_wb: 0.0,
+            largest_pointwise_difference_wb: 0.0,
+            peak_wb: 0.0,
+            at: (0.0, 0.0),
+        };
+        let dt_di = |a: usize, c: usize| {
+            (self.torque_nm[a][c + 1] - self.torque_nm[a][c - 1])
+                / (self.currents_a[c + 1] - self.currents_a[c - 1])
+        };
+        let dpsi_dtheta = |a: usize, c: usize| {
+            (self.flux_linkage_wb[a + 1][c] - self.flux_linkage_wb[a - 1][c])
+                / (self.angles_rad[a + 1] - self.angles_rad[a - 1])
+        };
+        // Trapezoid weights of the three points over [x - h1, x + h2].
+        let weights = |x: &[f64], k: usize| {
+            let (h1, h2) = (x[k] - x[k - 1], x[k + 1] - x[k]);
+            let w = h1 + h2;
+            [0.5 * h1 / w, 0.5, 0.5 * h2 / w]
+        };
+        for a in 1..na.saturating_sub(1) {
+            for c in 1..nc.saturating_sub(1) {
+                let (t, p) = (dt_di(a, c), dpsi_dtheta(a, c));
+                r.peak_wb = r.peak_wb.max(t.abs()).max(p.abs());
+                r.largest_pointwise_difference_wb =
+                    r.largest_pointwise_difference_wb.max((t - p).abs());
+                let wa = weights(&self.angles_rad, a);
+                let wc = weights(&self.currents_a, c);
+                let cell_t: f64 = (0..3).map(|k| wa[k] * dt_di(a + k - 1, c)).sum();
+                let cell_p: f64 = (0..3).map(|k| wc[k] * dpsi_dtheta(a, c + k - 1)).sum();
+                let d = (cell_t - cell_p).abs();
+                if d > r.largest_difference_wb {
+                    r.largest_difference_wb = d;
+                    r.at = (self.angles_rad[a], self.currents_a[c]);
+                }
+            }
+        }
+        r
+    }
+
+    /// The maps as CSV, one row per grid point: angle (deg), current (A), flux linkage (Wb),
+    /// torque by the eggshell (N m), by Arkkio (N m, empty without a band), Newton
+    /// iterations.
+    pub fn to_csv(&self) -> String {
+        let mut s = String::from(
+            "angle (deg),current (A),flux linkage (Wb),torque eggshell (N m),torque Arkkio (N m),newton iterations\n",
+        );
+        for (a, theta) in self.angles_rad.iter().enumerate() {
+            for (c, i) in self.currents_a.iter().enumerate() {
+                let ark = self
+                    .arkkio_nm
+                    .as_ref()
+                    .map_or(String::new(), |m| format!("{:e}", m[a][c]));
+                s.push_str(&format!(
+                    "{},{},{:e},{:e},{},{}\n",
+                    theta.to_degrees(),
+                    i,
+                    self.flux_linkage_wb[a][c],
+                    self.torque_nm[a][c],
+                    ark,
+                    self.newton_iterations[a][c]
+                ));
+            }
+        }
+        s
+    }
+}
+
+/// The psi(theta, i) and T(theta, i) maps of `phase` through [`torque_sweep`]: every angle
+/// of `angles_rad` (increasing, from the drawn position) with the phase at every current of
+/// `currents_a` (both signs; zero is added if missing, for the cogging torque), the other
+/// windings at the model's currents. Angles run in parallel; the currents of one angle
+/// share its mesh and symbolic factorisation and are solved from zero outwards, each
+/// warm-started from its neighbour. `settings.windings` is replaced by the phase, and the
+/// co-energy torque is not computed.
+///
+/// # Errors
+/// [`StudyError::Invalid`] for fewer than two angles, angles or currents not strictly
+/// increasing or not finite, or a phase that is not a winding of the model (checked on the
+/// drawn mesh); otherwise as [`torque_sweep`].
+pub fn machine_map<B>(
+    rigid: &RigidMesher,
+    angles_rad: &[f64],
+    currents_a: &[f64],
+    phase: &str,
+    settings: &TorqueSweepSettings,
+    build: B,
+) -> Result<MachineMap, StudyError>
+where
+    B: Fn(Mesh) -> Result<Model, FemError> + Sync,
+{
+    let increasing =
+        |v: &[f64]| v.iter().all(|x| x.is_finite()) && v.windows(2).all(|w| w[1] > w[0]);
+    if angles_rad.len() < 2 || !increasing(angles_rad) {
+        return Err(StudyError::Invalid {
+            what: "map angles".into(),
+            reason: "need at least two finite angles in increasing order".into(),
+        });
+    }
+    let mut currents: Vec<f64> = currents_a.to_vec();
+    if !currents.contains(&0.0) {
+        currents.push(0.0);
+    }
+    currents.sort_by(f64::total_cmp);
+    if !increasing(&currents) {
+        return Err(StudyError::Invalid {
+            what: "map currents".into(),
+            reason: "currents must be finite and distinct".into(),
+        });
+    }
+    let drawn = rigid.mesh_at(&[]).map_err(|source| StudyError::Mesh {
+        index: 0,
+        label: "drawn position".into(),
+        source,
+    })?;
+    let model = build(drawn).map_err(|e| StudyError::Solve {
+        index: 0,
+        label: "drawn position".into(),
+        source: Box::new(e),
+    })?;
+    if !model.windings().iter().any(|w| w.name == phase) {
+        return Err(StudyError::Invalid {
+            what: format!("phase `{phase}`"),
+            reason: format!(
+                "not a winding of the model (windings: {})",
+                model
+                    .windings()
+                    .iter()
+                    .map(|w| format!("`{}`", w.name))
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            ),
+        });
+    }
+    // Solve from zero current outwards, so that each point starts from its neighbour.
+    let z = currents.iter().position(|&i| i == 0.0).unwrap_or_default();
+    let order: Vec<usize> = std::iter::once(z)
+        .chain(z + 1..currents.len())
+        .chain((0..z).rev())
+        .collect();
+    let sets: Vec<Currents> = order
+        .iter()
+        .map(|&c| vec![(phase.to_string(), currents[c])])
+        .collect();
+    let map_settings = TorqueSweepSettings {
+        windings: vec![phase.to_string()],
+        coenergy_step_rad: None,
+        ..settings.clone()
+    };
+    let points = torque_sweep(rigid, angles_rad, &sets, &map_settings, build)?;
+    let (na, nc) = (angles_rad.len(), currents.len());
+    let mut psi = vec![vec![0.0; nc]; na];
+    let mut torque = vec![vec![0.0; nc]; na];
+    let mut ark = vec![vec![0.0; nc]; na];
+    let mut iterations = vec![vec![0; nc]; na];
+    for p in &points {
+        let (a, c) = (p.angle_index, order[p.current_index]);
+        psi[a][c] = p.flux_linkage_wb[0].1;
+        torque[a][c] = p.eggshell_nm;
+        ark[a][c] = p.arkkio_nm.unwrap_or(f64::NAN);
+        iterations[a][c] = p.newton_iterations;
+    }
+    Ok(MachineMap {
+        phase: phase.to_string(),
+        sectors: settings.sectors,
+        angles_rad: angles_rad.to_vec(),
+        currents_a: currents,
+        flux_linkage_wb: psi,
+        torque_nm: torque,
+        arkkio_nm: settings.gap.as_ref().map(|_| ark),
+        newton_iterations: iterations,
+    })
 }

@@ -228,8 +228,9 @@ impl ModelBuilder {
         self
     }
 
-    /// Assigns `material` to `region`, replacing the material it had in this builder (e.g. a
-    /// workpiece made air to model its removal); adds it if it had none.
+    /// Assigns `material` to the region named `region` in place of any material given to it
+    /// before (e.g. a moving magnet's easy axis turned with the part, on a builder from
+    /// [`Model::to_builder`]).
     pub fn replace_material(mut self, region: &str, material: Material) -> Self {
         self.materials.retain(|(r, _)| r != region);
         self.materials.push((region.to_string(), material));

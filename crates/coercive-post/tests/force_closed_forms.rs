@@ -297,6 +297,8 @@ fn round_magnet_in_a_uniform_field_feels_the_dipole_torque() {
     );
     assert!(e < 2e-3);
     assert!(rel(ark.covered_fraction, 1.0) < 1e-2);
+    assert_eq!(ark.sectors, 1);
+    assert_eq!(ark.whole_machine_torque(), ark.torque);
     eprintln!(
         "Arkkio radii {} m, {} m",
         ark.inner_radius, ark.outer_radius
@@ -742,11 +744,13 @@ fn axisymmetric_plunger_on_the_axis_is_pulled_into_its_coil() {
     for m in &f.methods {
         eprintln!("plunger, {}: F_z = {:.5} N", m.method, m.force[1]);
     }
-    // Measured: eggshell 2 and 1 layers -0.17748 N and -0.17780 N, mid-line -0.17842 N,
-    // path -0.17722 N; coil +0.17715 N; coil and plunger together -3.4e-4 N.
+    // Measured: eggshell 2 and 1 layers -0.17737 N and -0.17757 N, mid-line -0.17339 N
+    // (-0.17842 N on the mesh of the earlier, direction-dependent size field: the mid-line
+    // moves by a few % with the mesh, the eggshells by 1e-3), path -0.17722 N; coil
+    // +0.17715 N; coil and plunger together -3.4e-4 N.
     let fz = f.force()[1];
     assert!(fz < 0.0, "the plunger is pulled down into the coil: {fz}");
-    assert!(f.force_spread < 2e-2 && !f.warning, "{}", f.force_spread);
+    assert!(f.force_spread < 3e-2 && !f.warning, "{}", f.force_spread);
     let loc = PointLocator::new(sol.model().mesh().clone());
     let path = ClosedPath::new(vec![
         [0.0, 0.005],

@@ -33,12 +33,21 @@ pub enum AirGap {
 }
 
 /// Arkkio's torque on the part inside the air gap (counter-clockwise positive).
+///
+/// # Convention
+/// Like every other force method of this module, `torque` is the torque on what the model
+/// holds: for a sector of a periodic or anti-periodic model it is the sector's share
+/// (the torque on the rotor part inside the sector), and
+/// [`ArkkioTorque::whole_machine_torque`] multiplies it by the number of sectors
+/// ([`ArkkioTorque::sectors`]). A full model has one sector and both agree.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct ArkkioTorque {
-    /// Torque per metre of depth (N m/m). When the gap is a sector of a periodic model
-    /// (see [`ArkkioTorque::covered_fraction`]) this is already the torque of the whole
-    /// machine, the sector's stress being repeated around the circle.
+    /// Torque per metre of depth on the modelled part (N m/m): the sector's share in a
+    /// sector model, the whole machine's torque in a full one.
     pub torque: f64,
+    /// Number of copies of the meshed gap around the circle (1 for a full annulus, n for a
+    /// sector of 360/n degrees), from [`ArkkioTorque::covered_fraction`].
+    pub sectors: u32,
     /// Planar stack depth (m).
     pub depth_m: f64,
     /// Inner radius used (m).
@@ -51,17 +60,28 @@ pub struct ArkkioTorque {
 }
 
 impl ArkkioTorque {
-    /// Torque for the stack depth (N m).
+    /// Torque on the modelled part for the stack depth (N m).
     pub fn torque_total_nm(&self) -> f64 {
         self.torque * self.depth_m
+    }
+
+    /// Torque per metre of depth of the whole machine (N m/m): `torque` times `sectors`.
+    pub fn whole_machine_torque(&self) -> f64 {
+        self.torque * f64::from(self.sectors)
+    }
+
+    /// Torque of the whole machine for the stack depth (N m).
+    pub fn whole_machine_torque_total_nm(&self) -> f64 {
+        self.whole_machine_torque() * self.depth_m
     }
 }
 
 /// Arkkio's air-gap torque, T = L / (mu_0 (r_o - r_i)) integral over the annulus of
 /// r B_r B_phi dS: the Maxwell-stress torque averaged over every circle between r_i and r_o.
-/// The width r_o - r_i is taken as the integral of dS / (2 pi r) over the meshed gap (equal
-/// for an exact annulus), which removes the bias of polygonal circles and makes a sector of
-/// a periodic model give the whole machine's torque.
+/// The width r_o - r_i is taken as the integral of dS / (2 pi r) over the meshed gap divided
+/// by the meshed gap's angular coverage 1/n (equal for an exact annulus), which removes the
+/// bias of polygonal circles; a sector of 360/n degrees then gives its share of the torque
+/// (see [`ArkkioTorque`] for the convention).
 /// (A. Arkkio, "Analysis of induction motors based on the numerical solution of the magnetic
 /// field and circuit equations", Acta Polytechnica Scandinavica, Electrical Engineering
 /// Series 59, Helsinki, 1987). Planar models only.
@@ -70,7 +90,9 @@ impl ArkkioTorque {
 /// [`PostError::Unsupported`] for axisymmetric models; [`PostError::UnknownRegion`];
 /// [`PostError::NotInAir`] when a gap triangle is not air (naming its region);
 /// [`PostError::AnnulusCutsMesh`] when a triangle straddles one of the radii;
-/// [`PostError::InvalidArgument`] for radii that are not `0 <= r_i < r_o` or an empty gap.
+/// [`PostError::InvalidArgument`] for radii that are not `0 <= r_i < r_o`, an empty gap, or
+/// a meshed gap that does not cover 1/n of the circle for a whole number n (within 2 %: a
+/// sector angle that does not divide 360 degrees, or a gap region that is not a sector).
 pub fn arkkio_torque(solution: &Solution, gap: &AirGap) -> Result<ArkkioTorque, PostError> {
     let model = solution.model();
     let depth_m =
@@ -186,11 +208,23 @@ pub fn arkkio_torque(solution: &Solution, gap: &AirGap) -> Result<ArkkioTorque, 
             width += a * w / (2.0 * std::f64::consts::PI * r);
         }
     }
-    // The integral of dS / (2 pi r) is r_o - r_i for a full annulus; over the meshed gap it
-    // also accounts for the chords of polygonal circles and for sectors.
+    // The integral of dS / (2 pi r) is r_o - r_i for a full annulus and (r_o - r_i) / n for a
+    // sector of 360/n degrees; over the meshed gap it also accounts for the chords of
+    // polygonal circles.
     let covered_fraction = width / (ro - ri);
+    let n = (1.0 / covered_fraction).round();
+    if !((1.0..=1e6).contains(&n) && (covered_fraction * n - 1.0).abs() <= 0.02) {
+        return Err(PostError::InvalidArgument {
+            what: "air-gap coverage (fraction of the full circle)".into(),
+            value: covered_fraction,
+            reason: "the meshed gap must be the full annulus or a sector of 360/n degrees \
+                     (n whole)"
+                .into(),
+        });
+    }
     Ok(ArkkioTorque {
-        torque: integral / (MU_0 * width),
+        torque: integral / (MU_0 * width * n),
+        sectors: n as u32,
         depth_m,
         inner_radius: ri,
         outer_radius: ro,

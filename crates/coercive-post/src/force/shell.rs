@@ -111,6 +111,50 @@ struct ShellBase {
     in_body: Vec<bool>,
     blocked: Vec<bool>,
     adjacency: VertexTriangles,
+    /// Representative of each node's class: a node and its matched nodes on periodic or
+    /// anti-periodic curve pairs form one class and share one value of xi.
+    class: Vec<usize>,
+}
+
+/// Node classes of the periodic and anti-periodic curve pairs of the model: `class[v]` is
+/// the smallest node matched with v (through any chain of pairs), v itself otherwise; and
+/// whether each node lies on such a pair.
+fn periodic_classes(solution: &Solution) -> (Vec<usize>, Vec<bool>) {
+    use coercive_fem::BoundaryCondition;
+    let model = solution.model();
+    let mesh = model.mesh();
+    let nv = mesh.vertices().len();
+    let mut class: Vec<usize> = (0..nv).collect();
+    let mut on_pair = vec![false; nv];
+    fn find(class: &mut [usize], mut v: usize) -> usize {
+        while class[v] != v {
+            class[v] = class[class[v]];
+            v = class[v];
+        }
+        v
+    }
+    for bc in model.boundary_conditions() {
+        let (first, second) = match bc {
+            BoundaryCondition::Periodic { first, second }
+            | BoundaryCondition::AntiPeriodic { first, second } => (first, second),
+            _ => continue,
+        };
+        let (a, b) = (mesh.curves_named(first), mesh.curves_named(second));
+        for (ca, cb) in a.iter().zip(&b) {
+            for (u, w) in mesh.curve_nodes(*ca).iter().zip(mesh.curve_nodes(*cb)) {
+                let (u, w) = (u.index(), w.index());
+                on_pair[u] = true;
+                on_pair[w] = true;
+                let (ru, rw) = (find(&mut class, u), find(&mut class, w));
+                let (lo, hi) = (ru.min(rw), ru.max(rw));
+                class[hi] = lo;
+            }
+        }
+    }
+    for v in 0..nv {
+        class[v] = find(&mut class, v);
+    }
+    (class, on_pair)
 }
 
 impl ShellBase {
@@ -147,7 +191,15 @@ impl ShellBase {
             }
         }
         let adjacency = VertexTriangles::new(mesh);
-        let boundary = boundary_vertices(mesh, &adjacency);
+        // Nodes on periodic or anti-periodic pairs are not on the outer boundary: the shell
+        // continues across the pair (one xi per matched class), so a body cut by the edges
+        // of a sector (a rotor) gets its sector's share of the torque.
+        let (class, on_pair) = periodic_classes(solution);
+        let boundary: Vec<bool> = boundary_vertices(mesh, &adjacency)
+            .into_iter()
+            .zip(&on_pair)
+            .map(|(b, p)| b && !p)
+            .collect();
         for v in 0..nv {
             if !in_body[v] {
                 continue;
@@ -172,12 +224,23 @@ impl ShellBase {
                 });
             }
         }
-        let blocked: Vec<bool> = (0..nv)
+        let mut blocked: Vec<bool> = (0..nv)
             .map(|v| {
                 blocked_by[v].is_some()
                     || (boundary[v] && !(axisymmetric && mesh.vertices()[v].x.abs() <= axis_tol))
             })
             .collect();
+        // One value per class: a class is in the body (blocked) when any member is.
+        let mut class_body = vec![false; nv];
+        let mut class_blocked = vec![false; nv];
+        for v in 0..nv {
+            class_body[class[v]] |= in_body[v];
+            class_blocked[class[v]] |= blocked[v];
+        }
+        for v in 0..nv {
+            in_body[v] = class_body[class[v]];
+            blocked[v] = class_blocked[class[v]] && !in_body[v];
+        }
 
         Ok(ShellBase {
             mask,
@@ -185,6 +248,7 @@ impl ShellBase {
             in_body,
             blocked,
             adjacency,
+            class,
         })
     }
 
@@ -196,7 +260,15 @@ impl ShellBase {
             in_body,
             blocked,
             adjacency,
+            class,
         } = self;
+        // Members of each periodic class (only classes of more than one node).
+        let mut members: std::collections::BTreeMap<usize, Vec<usize>> = Default::default();
+        for (v, &c) in class.iter().enumerate() {
+            if c != v {
+                members.entry(c).or_insert_with(|| vec![c]).push(v);
+            }
+        }
         let nv = mesh.vertices().len();
         // Breadth-first layers through air triangles.
         let mut level = vec![usize::MAX; nv];
@@ -218,11 +290,16 @@ impl ShellBase {
                         if level[u] != usize::MAX {
                             continue;
                         }
-                        level[u] = k;
+                        let same: &[usize] = members
+                            .get(&class[u])
+                            .map_or(std::slice::from_ref(&u), Vec::as_slice);
+                        for &w in same {
+                            level[w] = k;
+                        }
                         if blocked[u] {
                             reached = reached.min(k);
                         } else {
-                            next.push(u);
+                            next.extend_from_slice(same);
                         }
                     }
                 }

@@ -1,0 +1,146 @@
+//! psi(theta, i) and T(theta, i) maps of one phase of the 6/4 machine of
+//! `meshes/srm_full.toml` over one stroke (phase A from unaligned to aligned), both current
+//! signs, through the rotation sweep; checked by the two identities that follow from the
+//! co-energy W'(theta, i) (Miller, Switched Reluctance Motors and their Control, 1993,
+//! ch. 3):
+//! - reciprocity: dT/di = dpsi/dtheta at every interior grid point;
+//! - energy per stroke: the area between the aligned and unaligned magnetisation curves in
+//!   the psi-i plane equals the integral of the torque beyond cogging over the stroke.
+//!
+//! A coarser mesh than the case's (P2, 47 000 triangles) keeps the 19 x 5 grid (95 nonlinear
+//! solves) near a minute; the identities hold for any mesh up to the discretisation and
+//! quadrature errors measured here.
+
+use std::path::PathBuf;
+
+use coercive::case::Case;
+use coercive::post::force::{AirGap, Body, ForceSettings};
+use coercive::solve::study_model;
+use coercive::study::{machine_map, StudyError, TorqueSweepSettings};
+
+fn case() -> Case {
+    let path = PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("meshes")
+        .join("srm_full.toml");
+    let text = std::fs::read_to_string(path)
+        .unwrap()
+        .replace("elements_across_gap = 1 ", "elements_across_gap = 0.5 ")
+        .replace("max_size = 3.0", "max_size = 4.0")
+        .replace("current = 5.0", "current = 0.0");
+    Case::from_toml_str(&text).unwrap()
+}
+
+fn settings() -> TorqueSweepSettings {
+    TorqueSweepSettings {
+        group: "rotor".into(),
+        centre: [0.0, 0.0],
+        body: Body::new(&["rotor"]),
+        gap: Some(AirGap::Region {
+            name: "airgap".into(),
+            centre: [0.0, 0.0],
+        }),
+        sectors: 1,
+        coenergy_step_rad: None,
+        windings: Vec::new(),
+        force: ForceSettings::default(),
+    }
+}
+
+#[test]
+fn the_maps_of_phase_a_are_reciprocal_and_conserve_energy() {
+    let case = case();
+    let rigid = case.geometry().unwrap().prepare_rigid().unwrap();
+    // Phase A (poles 1 and 4 at 0 and 180 degrees): the drawn rotor (poles at 45 + k 90
+    // degrees) is unaligned; turned 45 degrees counter-clockwise it is aligned.
+    let angles: Vec<f64> = (0..=18)
+        .map(|k| (2.5 * f64::from(k)).to_radians())
+        .collect();
+    let currents: Vec<f64> = (-2..=2).map(|k| 3.0 * f64::from(k)).collect();
+    let map = machine_map(&rigid, &angles, &currents, "phase_a", &settings(), |m| {
+        study_model(&case, m)
+    })
+    .unwrap();
+    assert_eq!(map.currents_a, currents);
+    let csv = map.to_csv();
+    assert_eq!(csv.lines().count(), 1 + angles.len() * 5);
+
+    let z = 2;
+    let last = angles.len() - 1;
+    eprintln!(
+        "psi at 6 A: unaligned {:.5} Wb, aligned {:.5} Wb; at 0 A (magnets): {:.5} / {:.5} Wb",
+        map.flux_linkage_wb[0][4],
+        map.flux_linkage_wb[last][4],
+        map.flux_linkage_wb[0][z],
+        map.flux_linkage_wb[last][z]
+    );
+    let cogging = map.cogging_nm();
+    let peak_cogging = cogging.iter().fold(0.0_f64, |m, t| m.max(t.abs()));
+    eprintln!("cogging torque: peak {peak_cogging:.4} N m");
+
+    // Reciprocity (Miller 1993, ch. 3), within 1 % of the peak derivative (issue 9).
+    let r = map.reciprocity();
+    eprintln!(
+        "reciprocity: largest |dT/di - dpsi/dtheta| {:.3e} Wb of peak {:.3e} Wb ({:.3} %, cell form) at {:.1} deg, {} A; pointwise {:.3} %",
+        r.largest_difference_wb,
+        r.peak_wb,
+        100.0 * r.relative(),
+        r.at.0.to_degrees(),
+        r.at.1,
+        100.0 * r.relative_pointwise()
+    );
+
+    // Energy per stroke at every non-zero current, both signs: within 0.5 % (issue 9).
+    for c in [0, 1, 3, 4] {
+        let e = map.stroke_energy(c).unwrap();
+        let rel = (e.loop_area_j - e.torque_integral_j).abs() / e.loop_area_j.abs();
+        eprintln!(
+            "{:+} A: psi-i loop area {:.5} J, integral of T beyond cogging {:.5} J ({:.3} %), cogging integral {:.5} J, average torque {:.4} N m",
+            e.current_a,
+            e.loop_area_j,
+            e.torque_integral_j,
+            100.0 * rel,
+            e.cogging_integral_j,
+            e.average_torque_nm
+        );
+        // Measured: 0.04-0.44 % on this grid (worst at -3 A); 0.001-0.25 % on the 1.25
+        // degree grid.
+        assert!(rel < 5e-3, "{e:?}");
+    }
+    assert!(map.stroke_energy(5).is_none());
+    // Measured on this 2.5 degree grid: 1.32 % (cell form; pointwise 4.6 %) at 12.5 degrees,
+    // where the rotor pole's edge meets the stator pole's and psi bends sharply with the
+    // angle; on a 1.25 degree grid (37 x 5 points, 2.3 minutes on two cores, run once):
+    // 0.54 % (cell form; pointwise 1.35 %), within the 1 % target of issue 9. The bound here
+    // is the coarse grid's.
+    assert!(r.relative() < 1.5e-2, "{r:?}");
+}
+
+#[test]
+fn bad_maps_are_refused_by_name() {
+    let case = case();
+    let rigid = case.geometry().unwrap().prepare_rigid().unwrap();
+    let build = |m| study_model(&case, m);
+    let e = machine_map(&rigid, &[0.0, 0.1], &[1.0], "phase_x", &settings(), build).unwrap_err();
+    assert!(
+        matches!(&e, StudyError::Invalid { what, .. } if what.contains("phase_x")),
+        "{e}"
+    );
+    let e = machine_map(&rigid, &[0.1, 0.0], &[1.0], "phase_a", &settings(), build).unwrap_err();
+    assert!(
+        matches!(&e, StudyError::Invalid { what, .. } if what == "map angles"),
+        "{e}"
+    );
+    let e = machine_map(
+        &rigid,
+        &[0.0, 0.1],
+        &[1.0, 1.0],
+        "phase_a",
+        &settings(),
+        build,
+    )
+    .unwrap_err();
+    assert!(
+        matches!(&e, StudyError::Invalid { what, .. } if what == "map currents"),
+        "{e}"
+    );
+}
