@@ -3,7 +3,7 @@
 
 use coercive_post::force::{
     relative_spread, vector_spread, Body, BodyForce, ForceMethod, ForceSettings, MethodForce,
-    THICKNESS_CHECK_FACTOR,
+    THICKNESS_CHECK_FACTOR, TORQUE_THICKNESS_CHECK_FACTOR,
 };
 
 fn method(method: ForceMethod, force: [f64; 2], torque: f64, planar: bool) -> MethodForce {
@@ -84,6 +84,7 @@ fn vector_spread_is_largest_distance_over_largest_magnitude_or_floor() {
 #[test]
 fn uncertainty_is_the_spread_or_the_weighted_thickness_check_whichever_is_larger() {
     assert_eq!(THICKNESS_CHECK_FACTOR, 10.0);
+    assert_eq!(TORQUE_THICKNESS_CHECK_FACTOR, 20.0);
     let settings = ForceSettings::default();
     let mut f = start(method(EGG2, [10.0, 0.0], 1.0, true), &settings);
     // One method: nothing to compare.
@@ -105,9 +106,9 @@ fn uncertainty_is_the_spread_or_the_weighted_thickness_check_whichever_is_larger
     assert_eq!(f.force_spread, 0.29_f64.sqrt() / 10.5);
     assert_eq!(f.force_uncertainty, 2.0);
     assert_eq!(f.relative_uncertainty, 2.0 / 10.5);
-    // Torques 1, 1.5, 3: spread (3 - 1) / 3, uncertainty max(2, 10 x 0.5) = 5.
+    // Torques 1, 1.5, 3: spread (3 - 1) / 3, uncertainty max(2, 20 x 0.5) = 10.
     assert_eq!(f.torque_spread, 2.0 / 3.0);
-    assert_eq!(f.torque_uncertainty, 5.0);
+    assert_eq!(f.torque_uncertainty, 10.0);
     // 2 / 10.5 = 0.19 is above the default tolerance of 0.05.
     assert!(f.warning);
     // The spread wins when the eggshells agree: (8, 0), (8, 0), (6, 0): 2, and 10 x 0 = 0.
