@@ -44,7 +44,7 @@ fn materials_json_lists_every_preset_with_its_numbers_and_source() {
     let sh = find("ndfeb-n42sh");
     assert_eq!(sh["kind"], "magnet");
     assert_eq!(sh["intrinsic_coercivity_a_per_m"], 1592e3);
-    assert_eq!(sh["remanence_t"], 1.3);
+    assert_eq!(sh["remanence_t"], 1.305);
     assert_eq!(find("air")["kind"], "non_magnetic");
 }
 

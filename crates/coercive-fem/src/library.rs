@@ -319,6 +319,23 @@ fn permeability_law_points(name: &str, p: [f64; 5]) -> Result<Vec<(f64, f64)>, M
 
 const KA_PER_M: f64 = 1e3;
 
+/// A grade that the hysteresis model also knows: its Br, HcB, HcJ and recoil permeability
+/// come from the same datasheet ([`crate::hysteresis::datasheet`], where each number's
+/// source is given), so the linear and the hysteretic model of a grade never disagree.
+fn from_sheet(name: &str, designation: &str, source: &str) -> MagnetGrade {
+    let sheet = crate::hysteresis::datasheet(name)
+        .expect("every grade built here is a preset of the hysteresis module (tested)");
+    magnet(
+        name,
+        designation,
+        sheet.remanence,
+        sheet.coercivity,
+        sheet.intrinsic_coercivity,
+        sheet.recoil_permeability,
+        source,
+    )
+}
+
 fn magnet(
     name: &str,
     designation: &str,
@@ -364,32 +381,24 @@ pub fn ndfeb_n35() -> MagnetGrade {
 /// Br 1.30 T: middle of 1.28-1.32 T `[GB/T 13560]`. HcB 915 kA/m and HcJ 955 kA/m: the
 /// published minima `[GB/T 13560]`. Recoil mu_r 1.05 `[GB/T 13560]` vendor tables.
 pub fn ndfeb_n42() -> MagnetGrade {
-    magnet(
+    from_sheet(
         "ndfeb-n42",
         "N42 (GB/T 13560)",
-        1.30,
-        915.0 * KA_PER_M,
-        955.0 * KA_PER_M,
-        1.05,
         "Br middle of 1.28-1.32 T, HcB and HcJ published minima, recoil 1.05 [GB/T 13560]",
     )
 }
 
 /// Sintered NdFeB N42SH (temperature class SH, for use up to about 150 degC), nominal.
 ///
-/// Br 1.30 T: middle of 1.28-1.32 T `[GB/T 13560]` (the same remanence range as N42). HcJ
+/// Br 1.305 T: middle of 1.29-1.32 T `[GB/T 13560]` (the hysteresis datasheet's value). HcJ
 /// 1592 kA/m (20 kOe): the minimum of class SH `[GB/T 13560]`. HcB 979 kA/m (12.3 kOe):
 /// `from memory` (vendor tables quote at least 12.3-12.5 kOe). Recoil mu_r 1.05
 /// `[GB/T 13560]` vendor tables.
 pub fn ndfeb_n42sh() -> MagnetGrade {
-    magnet(
+    from_sheet(
         "ndfeb-n42sh",
         "N42SH (GB/T 13560)",
-        1.30,
-        979.0 * KA_PER_M,
-        1592.0 * KA_PER_M,
-        1.05,
-        "Br middle of 1.28-1.32 T, HcJ class SH minimum, recoil 1.05 [GB/T 13560]; HcB from memory",
+        "Br middle of 1.29-1.32 T, HcJ class SH minimum, recoil 1.05 [GB/T 13560]; HcB from memory",
     )
 }
 
@@ -415,19 +424,16 @@ pub fn ndfeb_n52() -> MagnetGrade {
 /// Cast AlNiCo 5, nominal, after full magnetisation (about 240 kA/m, vendor tables).
 ///
 /// Br 1.275 T: middle of 1.25-1.30 T; HcB 50 kA/m: middle of 48-52 kA/m; recoil mu_r 3.6
-/// (vendor tables, `[MMPA 0100-00]` class). HcJ 51 kA/m: `from memory` (AlNiCo's HcJ is only
-/// slightly above HcB). The linear recoil model is NOT the demagnetisation curve: its own
+/// (vendor tables, `[MMPA 0100-00]` class). HcJ 50.33 kA/m: AlNiCo's HcJ is only slightly above
+/// HcB (`from memory`); the value is the one that gives the hysteresis model's fitted loop the
+/// middle (BH)max of 38-44 kJ/m^3 (see [`crate::hysteresis::datasheet`]). The linear recoil model is NOT the demagnetisation curve: its own
 /// coercivity Br/(mu_0 mu_rec) is about 282 kA/m, far above HcB; the magnet loses
 /// magnetisation irreversibly once H along the easy axis passes about -HcB.
 pub fn alnico_5() -> MagnetGrade {
-    magnet(
+    from_sheet(
         "alnico-5",
         "AlNiCo 5, cast (MMPA 0100-00)",
-        1.275,
-        50.0 * KA_PER_M,
-        51.0 * KA_PER_M,
-        3.6,
-        "Br middle of 1.25-1.30 T, HcB middle of 48-52 kA/m, recoil 3.6 [MMPA 0100-00] vendor tables; HcJ from memory",
+        "Br middle of 1.25-1.30 T, HcB middle of 48-52 kA/m, recoil 3.6 [MMPA 0100-00] vendor tables; HcJ set by the middle (BH)max",
     )
 }
 
@@ -437,13 +443,9 @@ pub fn alnico_5() -> MagnetGrade {
 /// `[MMPA 0100-00]` class). HcJ 124 kA/m and recoil mu_r 1.9: `from memory`. As for AlNiCo 5,
 /// the linear model holds on the recoil line only.
 pub fn alnico_8() -> MagnetGrade {
-    magnet(
+    from_sheet(
         "alnico-8",
         "AlNiCo 8, cast (MMPA 0100-00)",
-        0.865,
-        116.5 * KA_PER_M,
-        124.0 * KA_PER_M,
-        1.9,
         "Br middle of 0.83-0.90 T, HcB middle of 110-123 kA/m [MMPA 0100-00] vendor tables; HcJ and recoil from memory",
     )
 }
@@ -457,13 +459,9 @@ pub fn alnico_8() -> MagnetGrade {
 /// meets the class minimum. The straight line would reach B = 0 at 279 kA/m; ferrite's knee
 /// lies near HcJ, so keep reverse fields below about 190 kA/m.
 pub fn ferrite_hf_26_18() -> MagnetGrade {
-    magnet(
+    from_sheet(
         "ferrite-hf-26-18",
         "HF 26/18 (IEC 60404-8-1)",
-        0.385,
-        192.5 * KA_PER_M,
-        200.0 * KA_PER_M,
-        1.1,
         "class minima (BH)max 26 kJ/m^3, HcJ 180 kA/m [IEC 60404-8-1]; Br, HcB, HcJ middles of C5/Y30 vendor ranges [MMPA 0100-00]; recoil from memory",
     )
 }
