@@ -833,6 +833,16 @@ pub fn run_case(case: &crate::case::Case) -> Result<SwitchingReport, StudyError>
         source,
     })?;
     let extent = crate::solve::mesh_extent(&drawn);
+    let resistivity = crate::solve::resistivity_of(case, &sw.switched_magnet).ok_or_else(|| {
+        invalid(
+            "switched_magnet",
+            format!(
+                "the material of `{}` must be a hysteretic magnet preset (its \
+                         resistivity is needed for the eddy-current note)",
+                sw.switched_magnet
+            ),
+        )
+    })?;
     let settings = SwitchingSettings {
         gaps_m: sw.gaps_m.clone(),
         full_pulse_a: sw.full_pulse_a,
@@ -841,7 +851,7 @@ pub fn run_case(case: &crate::case::Case) -> Result<SwitchingReport, StudyError>
         recommended_margin: sw.recommended_margin,
         partial_amplitudes: sw.partial_amplitudes,
         pulse_duration_s: sw.pulse_duration_s,
-        switched_resistivity_ohm_m: 0.0,
+        switched_resistivity_ohm_m: resistivity,
         history: HistorySettings {
             max_step: sw.max_step,
             ..HistorySettings::default()
@@ -866,20 +876,6 @@ pub fn run_case(case: &crate::case::Case) -> Result<SwitchingReport, StudyError>
         guarded_magnet: sw.guarded_magnet.clone(),
         pulse_gap_m: sw.pulse_gap_m,
         off_current_sign: sw.off_current_sign,
-    };
-    let settings = SwitchingSettings {
-        switched_resistivity_ohm_m: crate::solve::resistivity_of(case, &sw.switched_magnet)
-            .ok_or_else(|| {
-                invalid(
-                    "switched_magnet",
-                    format!(
-                        "the material of `{}` must be a hysteretic magnet preset (its \
-                         resistivity is needed for the eddy-current note)",
-                        sw.switched_magnet
-                    ),
-                )
-            })?,
-        ..settings
     };
     let build = |mesh: Mesh, w: Workpiece| {
         let model = crate::solve::study_model(case, mesh)?;
