@@ -99,6 +99,24 @@ pub fn study_model(case: &Case, mesh: Mesh) -> Result<Model, FemError> {
     })
 }
 
+/// The geometry of `case`, its moving parts meshed once ([`RigidMesher`]), and the mesh at
+/// the drawn position: what every study of a moving part starts from.
+///
+/// # Errors
+/// [`CaseError`] for the geometry or the mesher.
+pub fn moving_parts(
+    case: &Case,
+) -> Result<(coercive_mesh::Geometry, coercive_mesh::RigidMesher, Mesh), crate::case::CaseError> {
+    let geometry = case.geometry()?;
+    let mesh_error = |source| crate::case::CaseError::Mesh {
+        source,
+        position: None,
+    };
+    let rigid = geometry.prepare_rigid().map_err(mesh_error)?;
+    let drawn = rigid.mesh_at(&[]).map_err(mesh_error)?;
+    Ok((geometry, rigid, drawn))
+}
+
 /// The largest side of the bounding box of `mesh` (m).
 pub fn mesh_extent(mesh: &Mesh) -> f64 {
     let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
@@ -351,28 +369,16 @@ pub enum SweepError {
 pub fn run_sweep(case: &Case) -> Result<SweepSummary, SweepError> {
     let started = std::time::Instant::now();
     let sw = case.sweep().ok_or(SweepError::NoSweep)?;
-    let geometry = case.geometry()?;
+    let (geometry, rigid, drawn) = moving_parts(case)?;
     let group_regions: Vec<&str> = geometry
         .rigid_groups
         .iter()
         .find(|g| g.name == sw.group)
         .map(|g| g.regions.iter().map(String::as_str).collect())
         .unwrap_or_default();
-    let rigid = geometry
-        .prepare_rigid()
-        .map_err(|source| crate::case::CaseError::Mesh {
-            source,
-            position: None,
-        })?;
+    let extent = mesh_extent(&drawn);
     // Check the non-mesh parts of the set-up once on the drawn mesh, so that the build
     // closure below can only meet mesh-dependent model errors.
-    let drawn = rigid
-        .mesh_at(&[])
-        .map_err(|source| crate::case::CaseError::Mesh {
-            source,
-            position: None,
-        })?;
-    let extent = mesh_extent(&drawn);
     model_from_case(case, drawn)?;
     let build = |mesh: Mesh| study_model(case, mesh);
     let unit = case.unit();
@@ -468,19 +474,7 @@ pub struct RotationSummary {
 pub fn run_rotation(case: &Case) -> Result<RotationSummary, SweepError> {
     let started = std::time::Instant::now();
     let rot = case.rotation().ok_or(SweepError::NoRotation)?;
-    let geometry = case.geometry()?;
-    let rigid = geometry
-        .prepare_rigid()
-        .map_err(|source| crate::case::CaseError::Mesh {
-            source,
-            position: None,
-        })?;
-    let drawn = rigid
-        .mesh_at(&[])
-        .map_err(|source| crate::case::CaseError::Mesh {
-            source,
-            position: None,
-        })?;
+    let (_, rigid, drawn) = moving_parts(case)?;
     model_from_case(case, drawn)?;
     let build = |mesh: Mesh| study_model(case, mesh);
     let settings = TorqueSweepSettings {

@@ -809,29 +809,16 @@ pub fn run_case(case: &crate::case::Case) -> Result<SwitchingReport, StudyError>
     let sw = case
         .switching()
         .ok_or_else(|| invalid("case", "it has no [switching] section".into()))?;
-    let geometry = case
-        .geometry()
-        .map_err(|e| invalid("case geometry", e.to_string()))?;
+    let (geometry, rigid, drawn) =
+        crate::solve::moving_parts(case).map_err(|e| invalid("case geometry", e.to_string()))?;
     let group_regions: Vec<String> = geometry
         .rigid_groups
         .iter()
         .find(|g| g.name == sw.moving_part)
         .map(|g| g.regions.clone())
         .unwrap_or_default();
-    let rigid = geometry
-        .prepare_rigid()
-        .map_err(|source| StudyError::Mesh {
-            index: 0,
-            label: "moving part".into(),
-            source,
-        })?;
     let workpiece = Body::new(&sw.workpiece);
     let group_body = Body::new(&group_regions);
-    let drawn = rigid.mesh_at(&[]).map_err(|source| StudyError::Mesh {
-        index: 0,
-        label: "drawn position".into(),
-        source,
-    })?;
     let extent = crate::solve::mesh_extent(&drawn);
     let resistivity = crate::solve::resistivity_of(case, &sw.switched_magnet).ok_or_else(|| {
         invalid(

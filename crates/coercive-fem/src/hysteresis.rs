@@ -572,28 +572,7 @@ impl HysteresisLaw {
                 return bad(name, value, "must be positive");
             }
         }
-        let mu = self.recoil_permeability;
-        if !mu.is_finite() {
-            return bad("recoil permeability", mu, "must be finite");
-        }
-        if mu < 1.0 {
-            return bad(
-                "recoil permeability",
-                mu,
-                "is below 1: a magnet's recoil permeability is at least that of vacuum",
-            );
-        }
-        let jr = self.reversible_polarisation;
-        if !jr.is_finite() {
-            return bad("reversible polarisation J_r (T)", jr, "must be finite");
-        }
-        if jr < 0.0 || (jr == 0.0 && mu > 1.0) {
-            return bad(
-                "reversible polarisation J_r (T)",
-                jr,
-                "must be positive when the recoil permeability exceeds 1",
-            );
-        }
+        check_reversible(self.recoil_permeability, self.reversible_polarisation, bad)?;
         Ok(())
     }
 
@@ -983,6 +962,37 @@ impl HysteresisLaw {
     }
 }
 
+/// Checks a recoil permeability (finite, at least 1) and the reversible part's saturation J_r
+/// (finite, non-negative, positive when the recoil permeability exceeds 1), reporting through
+/// `bad` (the caller names the law or grade).
+fn check_reversible(
+    mu: f64,
+    jr: f64,
+    bad: impl Fn(&'static str, f64, &'static str) -> Result<(), MaterialError>,
+) -> Result<(), MaterialError> {
+    if !mu.is_finite() {
+        return bad("recoil permeability", mu, "must be finite");
+    }
+    if mu < 1.0 {
+        return bad(
+            "recoil permeability",
+            mu,
+            "is below 1: a magnet's recoil permeability is at least that of vacuum",
+        );
+    }
+    if !jr.is_finite() {
+        return bad("reversible polarisation J_r (T)", jr, "must be finite");
+    }
+    if jr < 0.0 || (jr == 0.0 && mu > 1.0) {
+        return bad(
+            "reversible polarisation J_r (T)",
+            jr,
+            "must be positive when the recoil permeability exceeds 1",
+        );
+    }
+    Ok(())
+}
+
 /// Datasheet numbers of a magnet grade (the major loop's second quadrant and more).
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct MagnetDatasheet {
@@ -1125,28 +1135,7 @@ impl MagnetDatasheet {
                 return bad(name, value, "must be positive");
             }
         }
-        let mu = self.recoil_permeability;
-        if !mu.is_finite() {
-            return bad("recoil permeability", mu, "must be finite");
-        }
-        if mu < 1.0 {
-            return bad(
-                "recoil permeability",
-                mu,
-                "is below 1: a magnet's recoil permeability is at least that of vacuum",
-            );
-        }
-        let jr = self.reversible_polarisation;
-        if !jr.is_finite() {
-            return bad("reversible polarisation J_r (T)", jr, "must be finite");
-        }
-        if jr < 0.0 || (jr == 0.0 && mu > 1.0) {
-            return bad(
-                "reversible polarisation J_r (T)",
-                jr,
-                "must be positive when the recoil permeability exceeds 1",
-            );
-        }
+        check_reversible(self.recoil_permeability, self.reversible_polarisation, bad)?;
         let inconsistent = |quantity: &'static str, value: f64, bound: f64, reason| {
             Err(MaterialError::InconsistentDatasheet {
                 grade: self.name.clone(),
@@ -1172,7 +1161,7 @@ impl MagnetDatasheet {
                 "is not below Br / mu_0 (J would have to rise above Br at -HcB)",
             );
         }
-        let ideal = self.remanence * self.remanence / (4.0 * MU_0 * mu);
+        let ideal = self.remanence * self.remanence / (4.0 * MU_0 * self.recoil_permeability);
         if self.max_energy_product > ideal {
             return inconsistent(
                 "(BH)max (J/m^3)",
@@ -1386,14 +1375,7 @@ pub fn datasheet_names() -> &'static [&'static str] {
 /// # Errors
 /// [`MaterialError::UnknownPreset`] listing the known names.
 pub fn datasheet(name: &str) -> Result<MagnetDatasheet, MaterialError> {
-    let key: String = name
-        .trim()
-        .chars()
-        .map(|c| match c {
-            '_' | ' ' => '-',
-            c => c.to_ascii_lowercase(),
-        })
-        .collect();
+    let key = crate::library::preset_key(name);
     let sheet = |name: &str,
                  remanence: f64,
                  coercivity: f64,

@@ -882,20 +882,25 @@ pub fn names() -> &'static [&'static str] {
     &NAMES
 }
 
+/// The canonical form of a preset name: trimmed, lower case, `_` and spaces read as `-`
+/// (shared by this library and the hysteresis datasheets).
+pub(crate) fn preset_key(name: &str) -> String {
+    name.trim()
+        .chars()
+        .map(|c| match c {
+            '_' | ' ' => '-',
+            c => c.to_ascii_lowercase(),
+        })
+        .collect()
+}
+
 /// The editable grade of a preset name.
 ///
 /// # Errors
 /// [`MaterialError::RetiredPreset`] for a name of the earlier library (saying what to write
 /// instead), [`MaterialError::UnknownPreset`] listing the known names otherwise.
 pub fn grade(name: &str) -> Result<Grade, MaterialError> {
-    let key: String = name
-        .trim()
-        .chars()
-        .map(|c| match c {
-            '_' | ' ' => '-',
-            c => c.to_ascii_lowercase(),
-        })
-        .collect();
+    let key = preset_key(name);
     Ok(match key.as_str() {
         "air" | "copper" => Grade::NonMagnetic,
         "steel-c10" => Grade::Steel(steel_c10()),
