@@ -14,7 +14,7 @@ use coercive_post::force::{
     ForceSettings,
 };
 use coercive_post::winding::flux_linkage;
-use coercive_post::PostError;
+use coercive_post::{PointLocator, PostError};
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 use thiserror::Error;
@@ -164,7 +164,8 @@ pub fn force_sweep<B>(
 where
     B: Fn(Mesh) -> Result<Model, FemError> + Sync,
 {
-    sweep(rigid, points, settings, None, build)
+    let per_point = sweep(rigid, points, settings, None, build)?;
+    Ok(per_point.into_iter().flatten().collect())
 }
 
 /// [`force_sweep`] with the hysteretic magnets in the committed `state` at every point (e.g.
@@ -185,16 +186,45 @@ pub fn force_sweep_with_state<B>(
 where
     B: Fn(Mesh) -> Result<Model, FemError> + Sync,
 {
-    sweep(rigid, points, settings, Some(state), build)
+    let per_point = sweep(rigid, points, settings, Some(&[state]), build)?;
+    Ok(per_point.into_iter().flatten().collect())
+}
+
+/// [`force_sweep_with_state`] for several states at once: the force at every point in each
+/// state (outer index: state, inner: point). Each point's meshes, models and factorisation
+/// set-ups are built once and serve every state, and each state's solve starts from the
+/// previous state's field at that point: cheaper than one sweep per state when the states
+/// are many or alike (the forces after pulses of growing amplitude).
+///
+/// # Errors
+/// As [`force_sweep_with_state`].
+pub fn force_sweep_with_states<B>(
+    rigid: &RigidMesher,
+    points: &[TranslationPoint],
+    settings: &ForceSweepSettings,
+    states: &[&MagnetState],
+    build: B,
+) -> Result<Vec<Vec<ForcePoint>>, StudyError>
+where
+    B: Fn(Mesh) -> Result<Model, FemError> + Sync,
+{
+    let per_point = sweep(rigid, points, settings, Some(states), build)?;
+    let mut per_state: Vec<Vec<ForcePoint>> = vec![Vec::with_capacity(points.len()); states.len()];
+    for row in per_point {
+        for (k, p) in row.into_iter().enumerate() {
+            per_state[k].push(p);
+        }
+    }
+    Ok(per_state)
 }
 
 fn sweep<B>(
     rigid: &RigidMesher,
     points: &[TranslationPoint],
     settings: &ForceSweepSettings,
-    state: Option<&MagnetState>,
+    states: Option<&[&MagnetState]>,
     build: B,
-) -> Result<Vec<ForcePoint>, StudyError>
+) -> Result<Vec<Vec<ForcePoint>>, StudyError>
 where
     B: Fn(Mesh) -> Result<Model, FemError> + Sync,
 {
@@ -225,7 +255,21 @@ where
     points
         .par_iter()
         .enumerate()
-        .map(|(index, point)| sweep_point(rigid, index, point, settings, role, state, &build))
+        .map(|(index, point)| sweep_point(rigid, index, point, settings, role, states, &build))
+        .collect()
+}
+
+/// The potential of `solution` at `points` (0 where a point lies outside its mesh): the warm
+/// start of a solve on a nearby mesh of the same device.
+fn transferred(solution: &Solution, locator: &PointLocator, points: &[[f64; 2]]) -> Vec<f64> {
+    points
+        .par_iter()
+        .map(|&p| {
+            locator
+                .try_locate(p)
+                .and_then(|l| solution.potential_at(l.triangle, p).ok())
+                .unwrap_or(0.0)
+        })
         .collect()
 }
 
@@ -235,15 +279,21 @@ fn sweep_point<B>(
     point: &TranslationPoint,
     settings: &ForceSweepSettings,
     role: BodyRole,
-    state: Option<&MagnetState>,
+    states: Option<&[&MagnetState]>,
     build: &B,
-) -> Result<ForcePoint, StudyError>
+) -> Result<Vec<ForcePoint>, StudyError>
 where
     B: Fn(Mesh) -> Result<Model, FemError> + Sync,
 {
     let label = || point.label.clone();
     let d = settings.direction;
-    let solve_at = |shift: f64| {
+    let solve_error = |source: FemError| StudyError::Solve {
+        index,
+        label: label(),
+        source: Box::new(source),
+    };
+    // The model and solver set-up at the moving part's position shifted by `shift`.
+    let prepare = |shift: f64| -> Result<(Model, Solver), StudyError> {
         let offset = [
             point.offset[0] + shift * d[0],
             point.offset[1] + shift * d[1],
@@ -259,40 +309,92 @@ where
                 source,
             })?;
         build(mesh)
-            .and_then(|m| match state {
-                Some(state) => {
-                    Solver::new(&m)?.solve_with_state(&m, state, None, &NewtonSettings::default())
-                }
-                None => m.solve(),
-            })
-            .map_err(|source| StudyError::Solve {
-                index,
-                label: label(),
-                source: Box::new(source),
-            })
+            .and_then(|m| Ok((Solver::new(&m)?, m)))
+            .map(|(s, m)| (m, s))
+            .map_err(solve_error)
     };
-    let post = |source| StudyError::Post {
-        index,
-        label: label(),
-        source: Box::new(source),
+    let solve = |(model, solver): &(Model, Solver),
+                 state: Option<&MagnetState>,
+                 initial: Option<&[f64]>| {
+        let initial_state;
+        let state = match state {
+            Some(state) => state,
+            None => {
+                initial_state = MagnetState::initial(model);
+                &initial_state
+            }
+        };
+        solver
+            .solve_with_state_from(model, state, initial, &NewtonSettings::default())
+            .map_err(solve_error)
     };
-    let centre = solve_at(0.0)?;
-    let size = element_size_next_to(centre.model().mesh(), &settings.group_body.regions);
+    let centre_setup = prepare(0.0)?;
+    let size = element_size_next_to(centre_setup.0.mesh(), &settings.group_body.regions);
     let mut step = settings.size_step * size;
     if point.parameter != 0.0 {
         step = step.min(settings.relative_step * point.parameter.abs());
     }
     let step = step.max(settings.min_step_m);
-    let shifted = [
-        solve_at(-step)?,
-        solve_at(-0.5 * step)?,
-        solve_at(0.5 * step)?,
-        solve_at(step)?,
+    let shifted_setups = [
+        prepare(-step)?,
+        prepare(-0.5 * step)?,
+        prepare(0.5 * step)?,
+        prepare(step)?,
     ];
+    let locator = PointLocator::new(centre_setup.0.mesh().clone());
+    let list: Vec<Option<&MagnetState>> = match states {
+        Some(states) => states.iter().map(|s| Some(*s)).collect(),
+        None => vec![None],
+    };
+    let mut out = Vec::with_capacity(list.len());
+    let mut previous: Option<Solution> = None;
+    for state in list {
+        // Each state starts from the previous state's field on the same mesh; every shifted
+        // solve from this state's centre field interpolated at its nodes (the meshes differ
+        // only in the re-meshed air, and A is continuous): a few Newton iterations instead
+        // of a solve from zero.
+        let centre = solve(
+            &centre_setup,
+            state,
+            previous.as_ref().map(|s| s.potential()),
+        )?;
+        let shifted: Vec<Solution> = shifted_setups
+            .iter()
+            .map(|setup| {
+                let initial = transferred(&centre, &locator, setup.1.node_points());
+                solve(setup, state, Some(&initial))
+            })
+            .collect::<Result<_, _>>()?;
+        out.push(force_point(
+            point, index, settings, role, &centre, &shifted, step,
+        )?);
+        previous = Some(centre);
+    }
+    Ok(out)
+}
+
+/// The force point from the solutions at the centre and at the four shifted positions
+/// (-h, -h/2, h/2, h).
+fn force_point(
+    point: &TranslationPoint,
+    index: usize,
+    settings: &ForceSweepSettings,
+    role: BodyRole,
+    centre: &Solution,
+    shifted: &[Solution],
+    step: f64,
+) -> Result<ForcePoint, StudyError> {
+    let label = || point.label.clone();
+    let d = settings.direction;
+    let post = |source| StudyError::Post {
+        index,
+        label: label(),
+        source: Box::new(source),
+    };
     let along = |f: [f64; 2]| f[0] * d[0] + f[1] * d[1];
     let depth = centre.depth_m().unwrap_or(1.0);
-    let f = force_on(&centre, &settings.body, &settings.force).map_err(post)?;
-    let g = force_on(&centre, &settings.group_body, &settings.force).map_err(post)?;
+    let f = force_on(centre, &settings.body, &settings.force).map_err(post)?;
+    let g = force_on(centre, &settings.group_body, &settings.force).map_err(post)?;
     let cd = coenergy_force_richardson(
         [&shifted[0], &shifted[1], &shifted[2], &shifted[3]],
         d,

@@ -233,3 +233,73 @@ fn a_magnet_state_carries_over_to_every_gap_of_the_moving_part() {
     assert!(with_state < -1.0, "{with_state}");
     assert!((with_state - from_initial).abs() > 0.1);
 }
+
+#[test]
+fn a_sweep_over_several_states_equals_one_sweep_per_state() {
+    // The multi-state sweep shares each point's meshes and warm-starts each state from the
+    // previous one's field: the forces must not depend on that (Newton tolerance only).
+    use coercive::post::force::Body;
+    use coercive::study::{force_sweep_with_state, force_sweep_with_states, TranslationPoint};
+    let case = coarse_pad();
+    let rigid = case.geometry().unwrap().prepare_rigid().unwrap();
+    let build = |mesh| coercive::solve::study_model(&case, mesh);
+    let near = build(
+        rigid
+            .mesh_at(&[("pad", Placement::translation(0.0, 0.45e-3))])
+            .unwrap(),
+    )
+    .unwrap();
+    let magnetised = MagnetState::initial(&near);
+    let off = Solver::new(&near)
+        .unwrap()
+        .solve_history(
+            &near,
+            &magnetised,
+            &Pulse::single("coil", -60.0),
+            &HistorySettings::default(),
+        )
+        .unwrap()
+        .state;
+    let sw = case.switching().unwrap();
+    let pad: Vec<String> = case
+        .geometry()
+        .unwrap()
+        .rigid_groups
+        .iter()
+        .find(|g| g.name == "pad")
+        .unwrap()
+        .regions
+        .clone();
+    let settings = coercive::solve::sweep_settings(
+        "pad",
+        sw.direction,
+        Body::new(&sw.workpiece),
+        Body::new(&pad),
+        0.1,
+        true,
+    );
+    let points: Vec<TranslationPoint> = [0.1e-3, 1.0e-3]
+        .iter()
+        .map(|&g| TranslationPoint {
+            label: format!("gap {g}"),
+            parameter: g,
+            offset: [0.0, 0.5e-3 - g],
+        })
+        .collect();
+    let both =
+        force_sweep_with_states(&rigid, &points, &settings, &[&magnetised, &off], build).unwrap();
+    for (k, state) in [&magnetised, &off].into_iter().enumerate() {
+        let one = force_sweep_with_state(&rigid, &points, &settings, state, build).unwrap();
+        for (a, b) in both[k].iter().zip(&one) {
+            for (x, y) in [(a.eggshell_n, b.eggshell_n), (a.coenergy_n, b.coenergy_n)] {
+                assert!(
+                    (x - y).abs() <= 1e-6 * y.abs().max(1e-3),
+                    "state {k}, {}: {x} vs {y}",
+                    a.point.label
+                );
+            }
+        }
+    }
+    // The two states differ: the OFF state holds far less.
+    assert!(both[1][0].eggshell_n.abs() < 0.5 * both[0][0].eggshell_n.abs());
+}

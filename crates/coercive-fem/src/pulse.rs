@@ -335,6 +335,25 @@ impl Solver {
         pulse: &Pulse,
         settings: &HistorySettings,
     ) -> Result<HistoryRun, Box<HistoryError>> {
+        self.solve_history_from(model, state, None, pulse, settings)
+    }
+
+    /// [`Solver::solve_history`] with Newton's first load step started from `initial` (the
+    /// potential of every node, e.g. the solution that left `state`, at the pulse's first
+    /// currents), which saves re-solving a field that is already known; `None` starts from
+    /// zero. The result does not depend on the start beyond the Newton tolerance.
+    ///
+    /// # Errors
+    /// As [`Solver::solve_history`]; an `initial` of the wrong length is
+    /// [`FemError::IncompatibleModel`], returned with no completed step.
+    pub fn solve_history_from(
+        &self,
+        model: &Model,
+        state: &MagnetState,
+        initial: Option<&[f64]>,
+        pulse: &Pulse,
+        settings: &HistorySettings,
+    ) -> Result<HistoryRun, Box<HistoryError>> {
         let depth_m = match model.formulation() {
             Formulation::Planar { depth_m } => Some(depth_m),
             Formulation::Axisymmetric => None,
@@ -408,7 +427,7 @@ impl Solver {
             Ok(p) => p,
             Err(e) => return Err(setup_error(run, e)),
         };
-        let mut a = match self.start_potential(&layout, None) {
+        let mut a = match self.start_potential(&layout, initial) {
             Ok(a) => a,
             Err(e) => return Err(setup_error(run, e)),
         };

@@ -151,15 +151,32 @@ impl Solver {
         initial: Option<&Solution>,
         settings: &NewtonSettings,
     ) -> Result<Solution, FemError> {
+        self.solve_with_state_from(model, state, initial.map(|s| s.potential()), settings)
+    }
+
+    /// [`Solver::solve_with_state`] warm-started from a potential given at every node of
+    /// [`Solver::node_points`] (e.g. a solution on another mesh of the same device
+    /// interpolated there); only its free values are used.
+    ///
+    /// # Errors
+    /// As [`Solver::solve_with_state`]; [`FemError::IncompatibleModel`] if `initial` has the
+    /// wrong length.
+    pub fn solve_with_state_from(
+        &self,
+        model: &Model,
+        state: &MagnetState,
+        initial: Option<&[f64]>,
+        settings: &NewtonSettings,
+    ) -> Result<Solution, FemError> {
         state.check(model)?;
-        let mut steps = self.steps(
-            model,
-            &[1.0],
-            initial.map(|s| s.potential()),
-            state,
-            settings,
-        )?;
+        let mut steps = self.steps(model, &[1.0], initial, state, settings)?;
         Ok(steps.remove(0))
+    }
+
+    /// The position (m) of every node of the potential (vertices, then the edge nodes of
+    /// quadratic elements), in the order of [`Solution::potential`].
+    pub fn node_points(&self) -> &[[f64; 2]] {
+        &self.layout.dof_points
     }
 
     /// Solves a sequence of load steps: the current densities (windings included) are scaled
