@@ -104,8 +104,8 @@
 //! check M, D and E against two-dimensional quadrature of the density. Over a closed major
 //! cycle the loss is 2 D(+inf, -inf) = 4 Js Hc, the loop area of the irreversible part.
 //!
-//! The stored energy density along the easy axis is then mu_0 H^2/2 + integral of H dJ_rev
-//! + U_irr ([`HysteresisLaw::stored_energy_density`]), and the energy H dB supplied over a step
+//! The stored energy density along the easy axis is then mu_0 H^2/2 + (integral of
+//! H dJ_rev) + U_irr ([`HysteresisLaw::stored_energy_density`]), and the energy H dB supplied over a step
 //! equals its change plus [`HysteresisLaw::dissipation_density`] exactly.
 //!
 //! # Trial and commit
