@@ -126,6 +126,13 @@ pub struct PulseOutcome {
     pub guarded_polarisation_t: f64,
     /// Energy the coil delivered over the pulse, the integral of i dpsi (J, for the stack).
     pub supplied_energy_j: f64,
+    /// Of the supplied energy, the change of stored magnetic energy from before the pulse
+    /// to after it (J, for the stack; see `coercive::fem::HistoryRun::energy_balance`).
+    pub stored_energy_change_j: f64,
+    /// Of the supplied energy, the hysteresis loss in the magnets (J, for the stack, >= 0).
+    pub hysteresis_loss_j: f64,
+    /// supplied - stored change - loss (J): the load steps' quadrature error, not a loss.
+    pub energy_balance_residual_j: f64,
     /// Largest |H| along the easy axis in the switched magnet at the pulse's peak (A/m).
     pub peak_switched_field_a_per_m: f64,
     /// The guarded magnet's smallest margin to its knee at the pulse's peak,
@@ -332,6 +339,7 @@ where
         let guarded_peak = working_point(peak, &self.setup.guarded_magnet)?;
         let switched_end = working_point(last, &self.setup.switched_magnet)?;
         let guarded_end = working_point(last, &self.setup.guarded_magnet)?;
+        let balance = run.energy_balance();
         let margin = guarded_peak
             .knee_field_a_per_m
             .map(|k| 1.0 + guarded_peak.min_field_strength_a_per_m / k)
@@ -344,6 +352,9 @@ where
             switched_polarisation_t: switched_end.mean_polarisation_t,
             guarded_polarisation_t: guarded_end.mean_polarisation_t,
             supplied_energy_j: run.source_energies()[0] * self.depth_m,
+            stored_energy_change_j: balance.stored_change_j,
+            hysteresis_loss_j: balance.loss_j,
+            energy_balance_residual_j: balance.residual_j,
             peak_switched_field_a_per_m: switched_peak
                 .min_field_strength_a_per_m
                 .abs()
@@ -912,12 +923,16 @@ impl std::fmt::Display for SwitchingReport {
             writeln!(
                 f,
                 "  {:<10} threshold {:>9.0} A-turns; recommended {:>9.0} A-turns: {:.3} J \
-                 supplied, switched magnet J = {:+.3} T, peak |H| {:.0} kA/m; guarded magnet \
+                 supplied ({:+.3} J stored, {:.3} J hysteresis loss, {:+.1e} J residual), \
+                 switched magnet J = {:+.3} T, peak |H| {:.0} kA/m; guarded magnet \
                  margin to its knee {:.2} ({:.2} % of its volume beyond), J = {:+.3} T",
                 t.direction,
                 t.ampere_turns,
                 r.ampere_turns,
                 r.supplied_energy_j,
+                r.stored_energy_change_j,
+                r.hysteresis_loss_j,
+                r.energy_balance_residual_j,
                 r.switched_polarisation_t,
                 r.peak_switched_field_a_per_m * 1e-3,
                 r.guarded_knee_margin,
@@ -932,8 +947,11 @@ impl std::fmt::Display for SwitchingReport {
             writeln!(
                 f,
                 "  {label:<10} with the workpiece removed: switched magnet J = {:+.3} T, {:.3} J \
-                 supplied",
-                o.switched_polarisation_t, o.supplied_energy_j
+                 supplied ({:+.3} J stored, {:.3} J hysteresis loss)",
+                o.switched_polarisation_t,
+                o.supplied_energy_j,
+                o.stored_energy_change_j,
+                o.hysteresis_loss_j
             )?;
         }
         writeln!(f)?;
@@ -1043,6 +1061,9 @@ pub fn write_outputs(
         "switched fraction (%)".into(),
         "holding force (N)".into(),
         "supplied energy (J)".into(),
+        "stored energy change (J)".into(),
+        "hysteresis loss (J)".into(),
+        "energy balance residual (J)".into(),
     ]);
     for p in &report.partial {
         partial
@@ -1051,6 +1072,9 @@ pub fn write_outputs(
                 100.0 * p.switched_fraction,
                 holding_force_n(&p.force),
                 p.outcome.supplied_energy_j,
+                p.outcome.stored_energy_change_j,
+                p.outcome.hysteresis_loss_j,
+                p.outcome.energy_balance_residual_j,
             ])
             .map_err(|e| e.to_string())?;
     }
