@@ -41,8 +41,8 @@
 //! [`eddy_current_note`] gives the skin depth at the pulse's time scale to judge by how much.
 
 use coercive_fem::{
-    FemError, HistoryError, HistorySettings, KeepSolutions, MagnetState, Material, Model, Pulse,
-    Solution, Solver, MU_0,
+    EnergyBalance, FemError, HistoryError, HistorySettings, KeepSolutions, MagnetState, Material,
+    Model, Pulse, Solution, Solver, MU_0,
 };
 use coercive_mesh::{Mesh, Placement, RigidMesher};
 use coercive_post::force::Body;
@@ -145,6 +145,13 @@ pub struct PulseOutcome {
     pub guarded_polarisation_t: f64,
     /// Energy the coil delivered over the pulse, the integral of i dpsi (J, for the stack).
     pub supplied_energy_j: f64,
+    /// Of the supplied energy, the change of stored magnetic energy from before the pulse
+    /// to after it (J, for the stack; see `coercive::fem::HistoryRun::energy_balance`).
+    pub stored_energy_change_j: f64,
+    /// Of the supplied energy, the hysteresis loss in the magnets (J, for the stack, >= 0).
+    pub hysteresis_loss_j: f64,
+    /// supplied - stored change - loss (J): the load steps' quadrature error, not a loss.
+    pub energy_balance_residual_j: f64,
     /// Largest |H| along the easy axis in the switched magnet at the pulse's peak (A/m).
     pub peak_switched_field_a_per_m: f64,
     /// The guarded magnet's smallest margin to its knee at the pulse's peak,
@@ -361,7 +368,7 @@ where
             workpiece,
             peak,
             last,
-            run.source_energies()[0] * self.depth_m,
+            run.energy_balance(),
             (run.steps.len(), run.iterations()),
         )
     }
@@ -373,7 +380,7 @@ where
         workpiece: Workpiece,
         peak: &Solution,
         last: &Solution,
-        supplied_energy_j: f64,
+        energy: EnergyBalance,
         (load_steps, newton_iterations): (usize, usize),
     ) -> Result<PulseOutcome, StudyError> {
         let switched_peak = working_point(peak, &self.setup.switched_magnet)?;
@@ -392,7 +399,10 @@ where
             potential: Some(last.potential().to_vec()),
             switched_polarisation_t: switched_end.mean_polarisation_t,
             guarded_polarisation_t: guarded_end.mean_polarisation_t,
-            supplied_energy_j,
+            supplied_energy_j: energy.supplied_j,
+            stored_energy_change_j: energy.stored_change_j,
+            hysteresis_loss_j: energy.loss_j,
+            energy_balance_residual_j: energy.residual_j,
             peak_switched_field_a_per_m: switched_peak
                 .min_field_strength_a_per_m
                 .abs()
@@ -674,12 +684,28 @@ where
                 let last = fallen
                     .last_solution()
                     .ok_or_else(|| invalid(&label, "no solution after the pulse".into()))?;
+                // The rise up to this peak, then the fall: energies add up.
+                let rise_steps = &run.steps[..=at];
+                let depth = self.depth_m;
+                let fall_energy = fallen.energy_balance();
+                let supplied = rise_energy * depth + fall_energy.supplied_j;
+                let stored_change = (rise_steps[at].stored_energy - rise_steps[0].stored_energy)
+                    * depth
+                    + fall_energy.stored_change_j;
+                let loss = rise_steps[1..].iter().map(|s| s.loss).sum::<f64>() * depth
+                    + fall_energy.loss_j;
+                let energy = EnergyBalance {
+                    supplied_j: supplied,
+                    stored_change_j: stored_change,
+                    loss_j: loss,
+                    residual_j: supplied - stored_change - loss,
+                };
                 self.outcome(
                     a,
                     Workpiece::Present,
                     peak,
                     last,
-                    (rise_energy + fallen.source_energies()[0]) * self.depth_m,
+                    energy,
                     (
                         at + 1 + fallen.steps.len(),
                         rise_iterations + fallen.iterations(),
@@ -1172,12 +1198,16 @@ impl std::fmt::Display for SwitchingReport {
             writeln!(
                 f,
                 "  {:<10} threshold {:>9.0} A-turns; recommended {:>9.0} A-turns: {:.3} J \
-                 supplied, switched magnet J = {:+.3} T, peak |H| {:.0} kA/m; guarded magnet \
+                 supplied ({:+.3} J stored, {:.3} J hysteresis loss, {:+.1e} J residual), \
+                 switched magnet J = {:+.3} T, peak |H| {:.0} kA/m; guarded magnet \
                  margin to its knee {:.2} ({:.2} % of its volume beyond), J = {:+.3} T",
                 t.direction,
                 t.ampere_turns,
                 r.ampere_turns,
                 r.supplied_energy_j,
+                r.stored_energy_change_j,
+                r.hysteresis_loss_j,
+                r.energy_balance_residual_j,
                 r.switched_polarisation_t,
                 r.peak_switched_field_a_per_m * 1e-3,
                 r.guarded_knee_margin,
@@ -1192,8 +1222,11 @@ impl std::fmt::Display for SwitchingReport {
             writeln!(
                 f,
                 "  {label:<10} with the workpiece removed: switched magnet J = {:+.3} T, {:.3} J \
-                 supplied",
-                o.switched_polarisation_t, o.supplied_energy_j
+                 supplied ({:+.3} J stored, {:.3} J hysteresis loss)",
+                o.switched_polarisation_t,
+                o.supplied_energy_j,
+                o.stored_energy_change_j,
+                o.hysteresis_loss_j
             )?;
         }
         writeln!(f)?;
@@ -1324,6 +1357,9 @@ pub fn write_outputs(
         "switched fraction (%)".into(),
         "holding force (N)".into(),
         "supplied energy (J)".into(),
+        "stored energy change (J)".into(),
+        "hysteresis loss (J)".into(),
+        "energy balance residual (J)".into(),
     ]);
     for p in &report.partial {
         partial
@@ -1332,6 +1368,9 @@ pub fn write_outputs(
                 100.0 * p.switched_fraction,
                 holding_force_n(&p.force),
                 p.outcome.supplied_energy_j,
+                p.outcome.stored_energy_change_j,
+                p.outcome.hysteresis_loss_j,
+                p.outcome.energy_balance_residual_j,
             ])
             .map_err(|e| e.to_string())?;
     }

@@ -24,6 +24,10 @@ fn coarse_pad() -> Case {
     Case::from_toml_str(&text).unwrap()
 }
 
+/// Bound on the energy balance's residual relative to the supplied energy at the case's
+/// load steps (measured on this coarse pad: 6.2e-5 ON to OFF, 6.0e-5 OFF to ON).
+const RESIDUAL_BOUND: f64 = 1e-3;
+
 fn polarisation(solution: &coercive::fem::Solution, region: &str) -> f64 {
     FieldProbe::new(solution)
         .magnet_working_points()
@@ -57,6 +61,27 @@ fn the_pad_switches_off_and_on_and_holds_only_when_on() {
         assert!(r.guarded_knee_margin > 0.0, "{}", r.guarded_knee_margin);
         assert_eq!(r.guarded_beyond_knee_fraction, 0.0);
         assert!(r.supplied_energy_j > 0.0);
+        // Energy balance per pulse: supplied = stored-energy change + hysteresis loss; the
+        // residual is the trapezoidal rule's error over the load steps (see
+        // coercive_fem::EnergyBalance). A switching pulse reverses the AlNiCo: it must lose
+        // energy, and the split must close.
+        eprintln!(
+            "{}: supplied {:.4} J = stored change {:+.4} J + loss {:.4} J + residual {:+.2e} J",
+            t.direction,
+            r.supplied_energy_j,
+            r.stored_energy_change_j,
+            r.hysteresis_loss_j,
+            r.energy_balance_residual_j
+        );
+        assert!(r.hysteresis_loss_j > 0.0);
+        let sum = r.stored_energy_change_j + r.hysteresis_loss_j + r.energy_balance_residual_j;
+        assert!((sum - r.supplied_energy_j).abs() < 1e-12 * r.supplied_energy_j);
+        assert!(
+            r.energy_balance_residual_j.abs() < RESIDUAL_BOUND * r.supplied_energy_j,
+            "residual {} J of {} J supplied",
+            r.energy_balance_residual_j,
+            r.supplied_energy_j
+        );
     }
     let n42 = coercive::fem::datasheet("ndfeb-n42").unwrap().remanence;
     let change =

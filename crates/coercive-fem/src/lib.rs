@@ -35,7 +35,9 @@ pub use model::{
     Sense, Winding, WindingSide,
 };
 pub use newton::{NewtonFailure, NewtonFailureReason, NewtonReport, NewtonSettings, PhaseTimes};
-pub use pulse::{HistoryError, HistoryRun, HistorySettings, HistoryStep, KeepSolutions, Pulse};
+pub use pulse::{
+    EnergyBalance, HistoryError, HistoryRun, HistorySettings, HistoryStep, KeepSolutions, Pulse,
+};
 pub use solution::Solution;
 pub use solver::Solver;
 pub use state::MagnetState;

@@ -19,6 +19,11 @@
 //! (the virtual-work identity of the weak form at both ends), so the supplied energy and the
 //! material work agree to the solver's tolerance, with a truncation error of second order in
 //! the step that the ramp subdivision controls.
+//!
+//! Each step also records the stored energy with its committed state and the hysteresis
+//! loss of its change ([`HistoryStep::stored_energy`], [`HistoryStep::loss`]), so that
+//! [`HistoryRun::energy_balance`] splits the supplied energy into stored-energy change and
+//! loss (>= 0); the residual is the trapezoidal rule's error.
 
 use std::sync::Arc;
 
@@ -204,6 +209,12 @@ pub struct HistoryStep {
     pub flux_linkages: Vec<f64>,
     /// Newton iterations of this step.
     pub iterations: usize,
+    /// Stored energy with the state committed after this step (J per metre of depth planar,
+    /// J axisymmetric): see [`Solution::stored_energy`].
+    pub stored_energy: f64,
+    /// Hysteresis loss of this step, from the state committed before it to the one after
+    /// (J per metre of depth planar, J axisymmetric): see [`Solution::hysteresis_loss`].
+    pub loss: f64,
     /// The solution, when [`HistorySettings::keep`] asks for it. Its
     /// [`Solution::magnet_state`] is the state committed after this step.
     pub solution: Option<Solution>,
@@ -248,6 +259,40 @@ impl HistoryRun {
         self.source_energies().iter().sum::<f64>() * self.depth_m.unwrap_or(1.0)
     }
 
+    /// Stored energy after each step (J): [`HistoryStep::stored_energy`] times the stack
+    /// depth in planar models.
+    pub fn stored_energy_j(&self) -> Vec<f64> {
+        let depth = self.depth_m.unwrap_or(1.0);
+        self.steps.iter().map(|s| s.stored_energy * depth).collect()
+    }
+
+    /// Hysteresis loss over the history (J, times the stack depth in planar models): the sum
+    /// of [`HistoryStep::loss`] over the steps after the first, the same span as
+    /// [`HistoryRun::source_energies`] (which counts from the first step's solution).
+    pub fn loss_j(&self) -> f64 {
+        let depth = self.depth_m.unwrap_or(1.0);
+        self.steps.iter().skip(1).map(|s| s.loss).sum::<f64>() * depth
+    }
+
+    /// The energy balance of the history (J): what the windings supplied, the change of
+    /// stored energy from the first step to the last, the hysteresis loss in between, and the
+    /// residual supplied - change - loss. See [`EnergyBalance`].
+    pub fn energy_balance(&self) -> EnergyBalance {
+        let stored = self.stored_energy_j();
+        let change = match (stored.first(), stored.last()) {
+            (Some(a), Some(b)) => b - a,
+            _ => 0.0,
+        };
+        let supplied = self.total_source_energy();
+        let loss = self.loss_j();
+        EnergyBalance {
+            supplied_j: supplied,
+            stored_change_j: change,
+            loss_j: loss,
+            residual_j: supplied - change - loss,
+        }
+    }
+
     /// Total Newton iterations over all steps.
     pub fn iterations(&self) -> usize {
         self.steps.iter().map(|s| s.iterations).sum()
@@ -257,6 +302,29 @@ impl HistoryRun {
     pub fn last_solution(&self) -> Option<&Solution> {
         self.steps.iter().rev().find_map(|s| s.solution.as_ref())
     }
+}
+
+/// The energy balance of a load history (J; planar values times the stack depth).
+///
+/// The supplied energy is the trapezoidal integral of i dpsi over the load steps, which for
+/// the discrete equations equals the trapezoidal integral of H . dB over the domain; the
+/// stored-energy change and the loss are exact for the path the material takes between the
+/// converged fields (closed forms per quadrature point, see
+/// [`HysteresisLaw::stored_energy_density`](crate::HysteresisLaw::stored_energy_density) and
+/// [`HysteresisLaw::dissipation_density`](crate::HysteresisLaw::dissipation_density)). So the
+/// residual is the trapezoidal rule's error, second order in the load step
+/// ([`HistorySettings::max_step`]) where the fields vary smoothly, plus the Newton
+/// tolerance; it is not a loss.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct EnergyBalance {
+    /// Energy the windings supplied, the integral of i dpsi (J).
+    pub supplied_j: f64,
+    /// Stored energy after the last step minus after the first (J).
+    pub stored_change_j: f64,
+    /// Hysteresis loss of the magnets (J, never negative).
+    pub loss_j: f64,
+    /// supplied - stored change - loss (J).
+    pub residual_j: f64,
 }
 
 /// A history that stopped at a load step that did not converge even after cutting it: what was
@@ -518,6 +586,8 @@ impl Solver {
                             waypoint: if is_final { waypoint } else { None },
                             flux_linkages,
                             iterations: solution.newton_report().iterations,
+                            stored_energy: solution.stored_energy(),
+                            loss: solution.hysteresis_loss(),
                             solution: keep.then_some(solution),
                         });
                         from = Some(currents);

@@ -39,6 +39,10 @@ pub struct Solution {
     load_scale: f64,
     /// The committed magnet state after this solution (the histories with this field applied).
     state: MagnetState,
+    /// Stored energy with the committed state (J/m planar, J axisymmetric).
+    stored_energy: f64,
+    /// Hysteresis loss of the step from the previous committed state (J/m, J).
+    loss: f64,
 }
 
 impl Solution {
@@ -125,11 +129,20 @@ impl Solution {
             state: state_ref,
         };
         let (region_energy, region_coenergy) = asm.energies(&potential);
-        let state = if previous.is_empty() {
-            previous.clone()
+        let (state, magnet_stored, loss) = if previous.is_empty() {
+            (previous.clone(), 0.0, 0.0)
         } else {
-            previous.committed_with(&model, rule, &field_strength)
+            let c = previous.committed_with(&model, rule, &field_strength);
+            (c.state, c.stored_energy, c.loss)
         };
+        // Every other region stores its energy density (a state function of B).
+        let stored_energy = magnet_stored
+            + region_energy
+                .iter()
+                .enumerate()
+                .filter(|(r, _)| !model.material(RegionId(*r as u32)).is_hysteretic())
+                .map(|(_, w)| w)
+                .sum::<f64>();
         Solution {
             model,
             layout,
@@ -143,6 +156,8 @@ impl Solution {
             newton,
             load_scale,
             state,
+            stored_energy,
+            loss,
         }
     }
 
@@ -237,6 +252,26 @@ impl Solution {
     /// Total co-energy of the device (J), as [`Solution::total_energy`].
     pub fn total_coenergy(&self) -> f64 {
         self.coenergy() * self.depth_m().unwrap_or(1.0)
+    }
+
+    /// Stored (recoverable) magnetic energy with the committed state after this solution
+    /// (J/m planar, J axisymmetric): every region's energy density, the integral of H . dB
+    /// from its own zero (see [`Material::energy_density`](crate::Material::energy_density)),
+    /// except in hysteretic magnets, which store
+    /// [`HysteresisLaw::stored_energy_density`](crate::HysteresisLaw::stored_energy_density)
+    /// of their committed history along the easy axis plus mu_0 mu_perp H_perp^2 / 2 across
+    /// it. A state function: its change over a load history plus the
+    /// [`Solution::hysteresis_loss`] of every step is the energy the sources supplied.
+    pub fn stored_energy(&self) -> f64 {
+        self.stored_energy
+    }
+
+    /// Hysteresis loss of the load step that produced this solution (J/m planar, J
+    /// axisymmetric): the dissipation of every hysteretic point's change from the committed
+    /// state the step started from to the one it committed, integrated with the stiffness
+    /// rule. Never negative; zero without hysteretic magnets.
+    pub fn hysteresis_loss(&self) -> f64 {
+        self.loss
     }
 
     /// Largest |B| (T) over the quadrature points of each region.

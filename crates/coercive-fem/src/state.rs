@@ -15,9 +15,9 @@
 use coercive_mesh::Mesh;
 use serde::{Deserialize, Serialize};
 
-use crate::assembly::{easy_axis, triangle_map};
+use crate::assembly::{easy_axis, point_operator, triangle_map};
 use crate::hysteresis::History;
-use crate::material::Material;
+use crate::material::{Material, MU_0};
 use crate::model::Model;
 use crate::quadrature::TriangleRule;
 use crate::FemError;
@@ -173,11 +173,20 @@ impl MagnetState {
 
     /// The state after a converged load step: each point's history with the step's field
     /// along its easy axis applied. `h` is H (A/m) at every quadrature point of the mesh
-    /// (triangle-major, `rule.len()` per triangle).
-    pub(crate) fn committed_with(&self, model: &Model, rule: TriangleRule, h: &[[f64; 2]]) -> Self {
+    /// (triangle-major, `rule.len()` per triangle). Also returns the energy of the magnets'
+    /// points: the stored energy of the new state and the hysteresis loss of the change
+    /// (see [`Committed`]).
+    pub(crate) fn committed_with(
+        &self,
+        model: &Model,
+        rule: TriangleRule,
+        h: &[[f64; 2]],
+    ) -> Committed {
         let mut next = self.clone();
         let mesh = model.mesh();
         let n = self.points_per_triangle;
+        let mut stored_energy = 0.0;
+        let mut loss = 0.0;
         for (k, &t) in self.triangles.iter().enumerate() {
             let t = t as usize;
             let region = mesh.triangle_regions()[t];
@@ -187,13 +196,43 @@ impl MagnetState {
             let centroid = model.region_centroids()[region.index()];
             let tri = triangle_map(mesh, t);
             for q in 0..n {
-                let point = tri.point(rule.points[q]);
-                let e = easy_axis(model.material(region), point, centroid);
+                let op = point_operator(
+                    model.formulation(),
+                    model.order(),
+                    &tri,
+                    rule.points[q],
+                    rule.weights[q],
+                );
+                let e = easy_axis(model.material(region), op.point, centroid);
                 let hq = h[t * n + q];
                 let he = hq[0] * e[0] + hq[1] * e[1];
-                m.law.apply(&mut next.histories[k * n + q], he);
+                let hp = -hq[0] * e[1] + hq[1] * e[0];
+                let history = &mut next.histories[k * n + q];
+                loss += op.weight * m.law.dissipation_density(history, he);
+                m.law.apply(history, he);
+                stored_energy += op.weight
+                    * (m.law.stored_energy_density(history)
+                        + 0.5 * MU_0 * m.perpendicular_permeability * hp * hp);
             }
         }
-        next
+        Committed {
+            state: next,
+            stored_energy,
+            loss,
+        }
     }
+}
+
+/// A state committed after a load step, with the energy of its hysteretic points (J per
+/// metre planar, J axisymmetric), integrated with the stiffness rule's weights.
+pub(crate) struct Committed {
+    /// The new state.
+    pub state: MagnetState,
+    /// Stored energy of the hysteretic points in the new state: the integral of
+    /// [`HysteresisLaw::stored_energy_density`](crate::HysteresisLaw::stored_energy_density)
+    /// along the easy axis plus mu_0 mu_perp H_perp^2 / 2 across it.
+    pub stored_energy: f64,
+    /// Hysteresis loss of the change from the old state to the new one, the integral of
+    /// [`HysteresisLaw::dissipation_density`](crate::HysteresisLaw::dissipation_density).
+    pub loss: f64,
 }
