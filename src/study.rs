@@ -262,12 +262,27 @@ where
 /// The potential of `solution` at `points` (0 where a point lies outside its mesh): the warm
 /// start of a solve on a nearby mesh of the same device.
 fn transferred(solution: &Solution, locator: &PointLocator, points: &[[f64; 2]]) -> Vec<f64> {
+    transferred_values(solution, solution.potential(), locator, points)
+}
+
+/// The nodal field `values` (one value per node of `solution`'s potential) interpolated at
+/// `points` with `solution`'s elements (0 outside the mesh).
+fn transferred_values(
+    solution: &Solution,
+    values: &[f64],
+    locator: &PointLocator,
+    points: &[[f64; 2]],
+) -> Vec<f64> {
     points
         .par_iter()
         .map(|&p| {
             locator
                 .try_locate(p)
-                .and_then(|l| solution.potential_at(l.triangle, p).ok())
+                .and_then(|l| {
+                    solution
+                        .interpolate_nodal(l.triangle, l.barycentric, values)
+                        .ok()
+                })
                 .unwrap_or(0.0)
         })
         .collect()
@@ -347,28 +362,51 @@ where
         None => vec![None],
     };
     let mut out = Vec::with_capacity(list.len());
-    let mut previous: Option<Solution> = None;
+    let mut previous: Option<(Solution, Vec<Solution>)> = None;
     for state in list {
-        // Each state starts from the previous state's field on the same mesh; every shifted
-        // solve from this state's centre field interpolated at its nodes (the meshes differ
-        // only in the re-meshed air, and A is continuous): a few Newton iterations instead
-        // of a solve from zero.
+        // Warm starts. The centre starts from the previous state's centre field (same mesh).
+        // A shifted solve of the first state starts from this state's centre field
+        // interpolated at its nodes (the meshes differ only in the re-meshed air, and A is
+        // continuous); of a later state, from the previous state's solution on the same
+        // shifted mesh plus the interpolated change of the centre field between the two
+        // states, which carries the shift's own effect over. A few Newton iterations
+        // instead of a solve from zero; the result depends on the start only within the
+        // Newton tolerance.
         let centre = solve(
             &centre_setup,
             state,
-            previous.as_ref().map(|s| s.potential()),
+            previous.as_ref().map(|(c, _)| c.potential()),
         )?;
         let shifted: Vec<Solution> = shifted_setups
             .iter()
-            .map(|setup| {
-                let initial = transferred(&centre, &locator, setup.1.node_points());
+            .enumerate()
+            .map(|(j, setup)| {
+                let initial: Vec<f64> = match &previous {
+                    Some((before_centre, before)) => {
+                        let change: Vec<f64> = centre
+                            .potential()
+                            .iter()
+                            .zip(before_centre.potential())
+                            .map(|(x, y)| x - y)
+                            .collect();
+                        let delta =
+                            transferred_values(&centre, &change, &locator, setup.1.node_points());
+                        before[j]
+                            .potential()
+                            .iter()
+                            .zip(&delta)
+                            .map(|(x, d)| x + d)
+                            .collect()
+                    }
+                    None => transferred(&centre, &locator, setup.1.node_points()),
+                };
                 solve(setup, state, Some(&initial))
             })
             .collect::<Result<_, _>>()?;
         out.push(force_point(
             point, index, settings, role, &centre, &shifted, step,
         )?);
-        previous = Some(centre);
+        previous = Some((centre, shifted));
     }
     Ok(out)
 }

@@ -232,7 +232,7 @@ pub struct SwitchingReport {
 
 /// The load-step size (fraction of the peak current) of the full pulses that set the start
 /// states (only the state they leave is used).
-const FULL_PULSE_STEP: f64 = 0.25;
+const FULL_PULSE_STEP: f64 = 1.0;
 
 fn invalid(what: &str, reason: String) -> StudyError {
     StudyError::Invalid {
@@ -910,15 +910,21 @@ where
     // in place during the pulse and removed (then brought back).
     let removed_on = removed[1].state.as_ref().unwrap_or(&on_state);
     let removed_off = removed[0].state.as_ref().unwrap_or(&off_state);
+    // Alike states in sequence (each warm-starts the next): OFF, OFF pulsed without the
+    // workpiece, ON pulsed without it (the open-circuit ON pulse leaves the switched magnet
+    // partly reversed), ON.
     let mut curves = ctx
         .forces(
-            &[&on_state, &off_state, removed_on, removed_off],
+            &[&off_state, removed_off, removed_on, &on_state],
             &settings.gaps_m,
         )?
         .into_iter();
     let mut next_curve = || curves.next().unwrap_or_default();
-    let (force_on, force_off) = (next_curve(), next_curve());
-    let force_removed = [next_curve(), next_curve()];
+    let force_off = next_curve();
+    let force_removed_off = next_curve();
+    let force_removed_on = next_curve();
+    let force_on = next_curve();
+    let force_removed = [force_removed_on, force_removed_off];
     lap("force curves");
     // The force after each partial pulse at the pulse gap, in two halves in parallel.
     let partial_states: Vec<&MagnetState> = partial_outcomes

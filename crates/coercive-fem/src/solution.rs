@@ -351,6 +351,41 @@ impl Solution {
             .sum()
     }
 
+    /// Interpolates `values` (one per node of [`Solution::potential`], e.g. the difference of
+    /// two potentials on this mesh) at barycentric coordinates `l` of triangle `t`, with this
+    /// solution's elements.
+    ///
+    /// # Errors
+    /// [`FemError::IncompatibleModel`] if `values` has another length than the potential or
+    /// `t` is not a triangle of the mesh.
+    pub fn interpolate_nodal(
+        &self,
+        t: TriangleId,
+        l: [f64; 3],
+        values: &[f64],
+    ) -> Result<f64, FemError> {
+        if values.len() != self.potential.len() || t.index() >= self.model.mesh().triangles().len()
+        {
+            return Err(FemError::IncompatibleModel {
+                reason: format!(
+                    "{} nodal values for a potential of {} nodes, triangle {} of {}",
+                    values.len(),
+                    self.potential.len(),
+                    t.index() + 1,
+                    self.model.mesh().triangles().len()
+                ),
+            });
+        }
+        let v = shape_values(self.layout.order, l);
+        Ok(self
+            .layout
+            .triangle_dofs(t.index())
+            .iter()
+            .zip(v)
+            .map(|(&d, vi)| values[d as usize] * vi)
+            .sum())
+    }
+
     /// The vector potential at `point` (m) in triangle `t`: A_z (Wb/m) planar, A_phi (Wb/m)
     /// axisymmetric.
     ///
