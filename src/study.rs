@@ -406,7 +406,7 @@ pub struct TorqueSweepSettings {
     pub force: ForceSettings,
 }
 
-/// One set of winding currents of a sweep point: (winding name, current per turn in A);
+/// One set of winding currents of a sweep point: (winding name, terminal current in A);
 /// windings not listed keep the model's current.
 pub type Currents = Vec<(String, f64)>;
 
@@ -422,7 +422,7 @@ pub struct TorquePoint {
     pub current_index: usize,
     /// Rotation of the group from its drawn position (rad, counter-clockwise).
     pub angle_rad: f64,
-    /// The currents set at this point (A per turn).
+    /// The currents set at this point (terminal currents, A).
     pub currents_a: Currents,
     /// Whole-machine torque by the eggshell (virtual work over the air layer) (N m).
     pub eggshell_nm: f64,
@@ -760,7 +760,7 @@ pub struct MachineMap {
     pub sectors: u32,
     /// Rotor angles from the drawn position (rad), increasing.
     pub angles_rad: Vec<f64>,
-    /// Phase currents per turn (A), increasing, zero included.
+    /// Phase (terminal) currents (A), increasing, zero included.
     pub currents_a: Vec<f64>,
     /// Flux linkage of the phase (Wb), `[angle][current]`.
     pub flux_linkage_wb: Vec<Vec<f64>>,
@@ -795,12 +795,15 @@ pub struct StrokeEnergy {
 /// Control, 1993, ch. 3) at every interior grid point.
 ///
 /// Two forms: pointwise central differences, and the cell form, which compares the same
-/// quantity on both sides: the central difference of psi over [theta - h, theta + h]
-/// averaged over [i - k, i + k] (trapezoid) against the central difference of T over
-/// [i - k, i + k] averaged over [theta - h, theta + h]. Both sides of the cell form are the
-/// cell average of the mixed derivative to the trapezoid error, also where psi bends
-/// sharply with the angle (the pole edges meeting), where the pointwise form compares the
-/// slope at one angle with a secant across the bend.
+/// quantity on both sides. Over the cell [theta - h1, theta + h2] x [i - k1, i + k2] the
+/// co-energy gives the exact identity (Green's theorem on the cell)
+/// integral over theta of [T(theta, i + k2) - T(theta, i - k1)] = integral over i of
+/// [psi(theta + h2, i) - psi(theta - h1, i)], both equal to the cell's second difference of
+/// W'. Each side is a difference of samples in one direction, exact, and an integral in the
+/// other, taken by Simpson's rule on the three grid points (weights for unequal halves);
+/// divided by the cell's area both are the cell average of the mixed derivative. The
+/// trapezoid rule in place of Simpson's left 1.4 % on the 2.5 degree test grid where the
+/// pole edges meet and T(theta) bends sharply; Simpson's rule leaves 0.75 %.
 #[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Reciprocity {
     /// Largest |dT/di - dpsi/dtheta| over the interior points, cell form (Wb).
@@ -938,11 +941,16 @@ impl MachineMap {
             (self.flux_linkage_wb[a + 1][c] - self.flux_linkage_wb[a - 1][c])
                 / (self.angles_rad[a + 1] - self.angles_rad[a - 1])
         };
-        // Trapezoid weights of the three points over [x - h1, x + h2].
+        // Simpson weights of the three points for the mean over [x - h1, x + h2]: the
+        // integral of the quadratic through them, divided by h1 + h2 (1/6, 4/6, 1/6 on a
+        // uniform grid).
         let weights = |x: &[f64], k: usize| {
             let (h1, h2) = (x[k] - x[k - 1], x[k + 1] - x[k]);
-            let w = h1 + h2;
-            [0.5 * h1 / w, 0.5, 0.5 * h2 / w]
+            [
+                (2.0 - h2 / h1) / 6.0,
+                (h1 + h2) * (h1 + h2) / (6.0 * h1 * h2),
+                (2.0 - h1 / h2) / 6.0,
+            ]
         };
         for a in 1..na.saturating_sub(1) {
             for c in 1..nc.saturating_sub(1) {
