@@ -2158,6 +2158,16 @@ impl Reader<'_> {
                 format!("rotation `to_deg` ({to}) must exceed `from_deg` ({from})"),
             ));
         }
+        let period = 360.0 / f64::from(sectors);
+        if to - from > period * (1.0 + 1e-12) {
+            return Err(self.invalid(
+                &r.to_deg,
+                format!(
+                    "rotation angles from {from} to {to} degrees span more than the model's \
+                     period of {period} degrees (360 / sectors = {sectors}): the field repeats"
+                ),
+            ));
+        }
         if !(step.is_finite() && step > 0.0 && (to - from) / step <= 10_000.0) {
             return Err(self.invalid(
                 &r.step_deg,

@@ -148,3 +148,72 @@ fn bad_maps_are_refused_by_name() {
         "{e}"
     );
 }
+
+#[test]
+fn a_rotor_turned_off_centre_would_touch_the_stator() {
+    // Turned about (5, 0) mm instead of its axis, the rotor disc (radius 30.15 mm) moves
+    // 2 x 5 mm x sin(5 deg) = 0.87 mm at 10 degrees, more than the 0.2 mm of the air-gap
+    // band: refused before any point is meshed, naming the angle and the fixed curve.
+    let case = case();
+    let rigid = case.geometry().unwrap().prepare_rigid().unwrap();
+    let mut s = settings();
+    s.centre = [0.005, 0.0];
+    let e = machine_map(
+        &rigid,
+        &[0.0, 10f64.to_radians()],
+        &[3.0],
+        "phase_a",
+        &s,
+        |m| study_model(&case, m),
+    )
+    .unwrap_err();
+    match &e {
+        StudyError::Collision {
+            group,
+            angle_rad,
+            curve,
+            point,
+        } => {
+            assert_eq!(group, "rotor");
+            assert_eq!(*angle_rad, 10f64.to_radians());
+            // A stator-side curve (outside the drawn rotor's band circle of 30.15 mm).
+            assert!(point[0].hypot(point[1]) > 30.15e-3, "{e}");
+            assert!(!curve.starts_with("rotor") && curve != "band_inner", "{e}");
+        }
+        other => panic!("{other}"),
+    }
+    assert!(e.to_string().contains("10.0000 deg"), "{e}");
+}
+
+#[test]
+fn a_failed_grid_point_is_reported_and_the_others_kept() {
+    // The model builder fails once (standing for any point's failure): the angle whose
+    // set-up failed reports each of its currents with its (theta, i), the others solve.
+    let case = case();
+    let rigid = case.geometry().unwrap().prepare_rigid().unwrap();
+    let calls = std::sync::atomic::AtomicUsize::new(0);
+    let angles = [0.0, 5f64.to_radians(), 10f64.to_radians()];
+    let map = machine_map(&rigid, &angles, &[3.0], "phase_a", &settings(), |m| {
+        // Call 0 is the drawn mesh's check of the phase; call 2 is one angle's set-up.
+        if calls.fetch_add(1, std::sync::atomic::Ordering::SeqCst) == 2 {
+            Err(coercive::fem::FemError::InvalidPulse {
+                reason: "a stand-in failure".into(),
+            })
+        } else {
+            study_model(&case, m)
+        }
+    })
+    .unwrap();
+    assert_eq!(map.failed.len(), 2, "{:?}", map.failed);
+    let bad = map.failed[0].angle_rad;
+    let a = angles.iter().position(|&x| x == bad).unwrap();
+    let mut currents: Vec<f64> = map.failed.iter().map(|f| f.current_a).collect();
+    currents.sort_by(f64::total_cmp);
+    assert_eq!(currents, vec![0.0, 3.0]);
+    assert!(map.failed.iter().all(|f| f.angle_rad == bad));
+    assert!(map.failed.iter().any(|f| f.reason.contains("stand-in")));
+    for (k, row) in map.flux_linkage_wb.iter().enumerate() {
+        assert_eq!(row.iter().all(|p| p.is_nan()), k == a, "{row:?}");
+        assert_eq!(row.iter().all(|p| p.is_finite()), k != a, "{row:?}");
+    }
+}

@@ -63,6 +63,8 @@ fn bad_rotation_sections_are_named_with_their_position() {
         ("step_deg = 2.5", "step_deg = 0", "step_deg"),
         ("from_deg = 0", "from_deg = 400", "within"),
         ("currents = [-6, -3, 3, 6]", "currents = [3, 3]", "distinct"),
+        // A twelfth of the machine repeats every 30 degrees: 0 to 45 is outside the period.
+        ("sectors = 1", "sectors = 12", "period"),
         (
             "step_deg = 2.5",
             "step_deg = 2.5\nstep = 1",
