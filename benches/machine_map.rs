@@ -8,8 +8,9 @@
 //! are meshed again), its symbolic factorisation is shared by its 25 currents, and each
 //! current is warm-started from its neighbour; angles run in parallel.
 //!
-//! Timed once (the whole map, meshing included), with the time per solve and the Newton
-//! iterations printed; then `one_point` (criterion, 10 samples): one map point warm-started
+//! Timed once (the whole map, meshing included), with the time per solve, the process's
+//! CPU time (the load-independent figure on a shared machine) and the Newton iterations
+//! printed; then `one_point` (criterion, 10 samples): one map point warm-started
 //! from its neighbouring current on a prepared mesh and solver.
 //!
 //! Run: `cargo bench --bench machine_map` (target: the map in under 3 minutes on 2 cores).
@@ -35,6 +36,19 @@ fn case() -> Case {
     Case::from_toml_str(&text).expect("the modified case reads")
 }
 
+/// CPU time of this process so far (s, user + system), from /proc/self/stat on Linux
+/// (`None` elsewhere): on a shared machine the wall time follows the other users' load, the
+/// CPU time does not.
+fn cpu_seconds() -> Option<f64> {
+    let stat = std::fs::read_to_string("/proc/self/stat").ok()?;
+    // Fields after the parenthesised command name; utime and stime are fields 14 and 15.
+    let rest = &stat[stat.rfind(')')? + 2..];
+    let fields: Vec<&str> = rest.split_whitespace().collect();
+    let ticks: f64 = fields.get(11)?.parse::<f64>().ok()? + fields.get(12)?.parse::<f64>().ok()?;
+    // The kernel's USER_HZ is 100 on every mainstream Linux configuration.
+    Some(ticks / 100.0)
+}
+
 fn benches(c: &mut Criterion) {
     let case = case();
     let rigid = case.geometry().unwrap().prepare_rigid().unwrap();
@@ -56,12 +70,14 @@ fn benches(c: &mut Criterion) {
         .flat_map(|k| [f64::from(k), -f64::from(k)])
         .collect();
     let drawn = study_model(&case, rigid.mesh_at(&[]).unwrap()).unwrap();
+    let cpu0 = cpu_seconds();
     let t0 = Instant::now();
     let map = machine_map(&rigid, &angles, &currents, "phase_a", &settings, |m| {
         study_model(&case, m)
     })
     .unwrap();
     let seconds = t0.elapsed().as_secs_f64();
+    let cpu = cpu_seconds().zip(cpu0).map(|(b, a)| b - a);
     let solves = angles.len() * map.currents_a.len();
     let iterations: usize = map.newton_iterations.iter().flatten().sum();
     let worst = map.newton_iterations.iter().flatten().max().unwrap();
@@ -78,6 +94,14 @@ fn benches(c: &mut Criterion) {
         iterations as f64 / solves as f64,
         100.0 * r.relative()
     );
+    if let Some(cpu) = cpu {
+        eprintln!(
+            "machine map: {cpu:.1} s of CPU time ({:.3} s per solve): {:.1} s of wall time on 2 \
+             otherwise idle cores",
+            cpu / solves as f64,
+            cpu / 2.0
+        );
+    }
 
     // One point: the aligned rotor (45 degrees) at 6 A, warm-started from 5 A.
     let pl = coercive::mesh::Placement::rotation(
