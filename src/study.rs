@@ -571,13 +571,16 @@ fn with_group_placed(
 ///
 /// Angles run in parallel (rayon); the current sets of one angle share its mesh and its
 /// symbolic factorisation and run in the given order, each warm-started from the previous
-/// solution or from the first set's, whichever has the nearer currents. Every point is a pure function of its inputs, so the result does not depend
-/// on the number of threads. Points come angle by angle, currents within an angle.
+/// solution or from the first set's, whichever has the nearer currents. Every point is a
+/// pure function of its inputs, so the result does not depend on the number of threads.
+/// Points come angle by angle, currents within an angle. Before any point is meshed, the
+/// group turned to each angle is checked against the fixed curves.
 ///
 /// # Errors
 /// [`StudyError::Invalid`] for a zero sector count, a non-finite angle or step, a winding
-/// that is not in the model, or a band whose coverage disagrees with `sectors`; otherwise
-/// the first failing point's error, naming its angle and currents.
+/// that is not in the model, or a band whose coverage disagrees with `sectors`;
+/// [`StudyError::Collision`] when the group turned to an angle would overlap a fixed curve;
+/// otherwise the first failing point's error, naming its angle and currents.
 pub fn torque_sweep<B>(
     rigid: &RigidMesher,
     angles_rad: &[f64],
