@@ -658,6 +658,10 @@ struct RawWinding {
     positive: Vec<Spanned<String>>,
     #[serde(default)]
     negative: Vec<Spanned<String>>,
+    #[serde(default)]
+    parallel_paths: Option<Spanned<i64>>,
+    #[serde(default)]
+    end_winding_inductance_mh: Option<Spanned<f64>>,
 }
 
 /// `[[boundary]]`: `kind` selects which of the other keys apply (checked after reading, so
@@ -1785,6 +1789,28 @@ impl Reader<'_> {
                 ));
             }
             let mut winding = Winding::new(name, turns, current);
+            if let Some(a) = &w.parallel_paths {
+                let paths = *a.get_ref();
+                if !(1..=1000).contains(&paths) {
+                    return Err(fail(
+                        a.span().start,
+                        format!(
+                            "`parallel_paths` must be a whole number from 1 to 1000, got {paths}"
+                        ),
+                    ));
+                }
+                winding = winding.parallel_paths(paths as u32);
+            }
+            if let Some(l) = &w.end_winding_inductance_mh {
+                let mh = *l.get_ref();
+                if !(mh.is_finite() && mh >= 0.0) {
+                    return Err(fail(
+                        l.span().start,
+                        format!("`end_winding_inductance_mh` must be finite and >= 0, got {mh} mH"),
+                    ));
+                }
+                winding = winding.end_turn_inductance(mh * 1e-3);
+            }
             for (sides, sense) in [
                 (&w.positive, Sense::Positive),
                 (&w.negative, Sense::Negative),
@@ -2130,6 +2156,16 @@ impl Reader<'_> {
             return Err(self.invalid(
                 &r.to_deg,
                 format!("rotation `to_deg` ({to}) must exceed `from_deg` ({from})"),
+            ));
+        }
+        let period = 360.0 / f64::from(sectors);
+        if to - from > period * (1.0 + 1e-12) {
+            return Err(self.invalid(
+                &r.to_deg,
+                format!(
+                    "rotation angles from {from} to {to} degrees span more than the model's \
+                     period of {period} degrees (360 / sectors = {sectors}): the field repeats"
+                ),
             ));
         }
         if !(step.is_finite() && step > 0.0 && (to - from) / step <= 10_000.0) {

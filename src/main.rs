@@ -163,6 +163,7 @@ fn run_solve(args: &SolveArgs) -> Result<(), String> {
         if case.rotation().is_some() {
             let rotation =
                 coercive::solve::run_rotation(&case).map_err(|e| format!("{name}: {e}"))?;
+            write_rotation(&case, &rotation, args)?;
             if let Some(obj) = value.as_object_mut() {
                 obj.insert(
                     "rotation".into(),
@@ -206,12 +207,27 @@ fn run_solve(args: &SolveArgs) -> Result<(), String> {
                 coercive::solve::run_rotation(&case).map_err(|e| format!("{name}: {e}"))?;
             say!();
             say!("{rotation}");
+            write_rotation(&case, &rotation, args)?;
         }
         if case.switching().is_some() {
             let report = run_switching(&case, args)?;
             say!();
             say!("{report}");
         }
+    }
+    Ok(())
+}
+
+/// Writes the files of a `[rotation]` study when `--out` is given.
+fn write_rotation(
+    case: &Case,
+    rotation: &coercive::solve::RotationSummary,
+    args: &SolveArgs,
+) -> Result<(), String> {
+    if let Some(dir) = &args.out {
+        let files = coercive::solve::write_rotation_outputs(case, rotation, dir)
+            .map_err(|e| format!("{}: {e}", args.case.display()))?;
+        eprintln!("wrote {} files to {}", files.len(), dir.display());
     }
     Ok(())
 }

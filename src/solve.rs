@@ -525,6 +525,241 @@ pub fn run_rotation(case: &Case) -> Result<RotationSummary, SweepError> {
     })
 }
 
+/// Writes the files of a `[rotation]` study into `dir`: the table (`rotation.csv`,
+/// `rotation.json`) and, for a map (`phase`), the magnetisation curves psi(i) at several
+/// angles (`psi_i.svg`), the torque T(theta) at several currents (`torque_theta.svg`), the
+/// maps psi(theta, i) and T(theta, i) as filled contour plots with a colour bar
+/// (`psi_map.svg`, `torque_map.svg`; left out when a grid point failed) and the flux maps at
+/// the first and last angle (unaligned and aligned for a stroke) at the largest current
+/// (`flux_first_angle.svg`, `flux_last_angle.svg`); without a phase, torque versus angle
+/// (`torque_theta.svg`). Returns the paths written.
+///
+/// # Errors
+/// A message naming the file that could not be written or the point that could not be
+/// solved for a flux map.
+pub fn write_rotation_outputs(
+    case: &Case,
+    summary: &RotationSummary,
+    dir: &std::path::Path,
+) -> Result<Vec<std::path::PathBuf>, String> {
+    use coercive_post::plot::{
+        field_map_svg, filled_contour_svg, xy_chart_svg, ChartOptions, ContourOptions,
+        FieldMapOptions, Series,
+    };
+    std::fs::create_dir_all(dir).map_err(|e| format!("{}: {e}", dir.display()))?;
+    let mut written = Vec::new();
+    let mut write = |name: &str, text: String| -> Result<(), String> {
+        let path = dir.join(name);
+        std::fs::write(&path, text).map_err(|e| format!("{}: {e}", path.display()))?;
+        written.push(path);
+        Ok(())
+    };
+    let plot = |e: coercive_post::plot::PlotError| e.to_string();
+    write(
+        "rotation.json",
+        serde_json::to_string_pretty(summary).map_err(|e| e.to_string())?,
+    )?;
+    let whole = if summary.sectors == 1 {
+        "whole machine".to_string()
+    } else {
+        format!("whole machine, {} sectors", summary.sectors)
+    };
+    let Some(map) = &summary.map else {
+        let mut csv = String::from(
+            "angle (deg),torque eggshell (N m),torque stress (N m),torque Arkkio (N m)\n",
+        );
+        for p in &summary.points {
+            csv.push_str(&format!(
+                "{},{:e},{:e},{}\n",
+                p.angle_rad.to_degrees(),
+                p.eggshell_nm,
+                p.stress_nm,
+                p.arkkio_nm.map_or(String::new(), |t| format!("{t:e}"))
+            ));
+        }
+        write("rotation.csv", csv)?;
+        let mut series = vec![Series::new(
+            "eggshell",
+            summary
+                .points
+                .iter()
+                .map(|p| (p.angle_rad.to_degrees(), p.eggshell_nm))
+                .collect(),
+        )];
+        if summary.points.iter().all(|p| p.arkkio_nm.is_some()) {
+            series.push(Series::new(
+                "Arkkio",
+                summary
+                    .points
+                    .iter()
+                    .filter_map(|p| Some((p.angle_rad.to_degrees(), p.arkkio_nm?)))
+                    .collect(),
+            ));
+        }
+        let svg = xy_chart_svg(
+            &series,
+            &ChartOptions {
+                title: format!("torque on `{}` versus angle ({whole})", summary.group),
+                x_label: "rotor angle (deg)".into(),
+                y_label: "torque (N m)".into(),
+                include_zero_y: true,
+                ..ChartOptions::default()
+            },
+        )
+        .map_err(plot)?;
+        write("torque_theta.svg", svg)?;
+        return Ok(written);
+    };
+    write("rotation.csv", map.to_csv())?;
+    let degrees: Vec<f64> = map.angles_rad.iter().map(|a| a.to_degrees()).collect();
+    // At most `n` indices spread evenly over 0..len, first and last included.
+    let pick = |len: usize, n: usize| -> Vec<usize> {
+        if len <= n {
+            return (0..len).collect();
+        }
+        let mut v: Vec<usize> = (0..n)
+            .map(|k| ((k * (len - 1)) as f64 / (n - 1) as f64).round() as usize)
+            .collect();
+        v.dedup();
+        v
+    };
+    let finite = |points: Vec<(f64, f64)>| -> Vec<(f64, f64)> {
+        points.into_iter().filter(|p| p.1.is_finite()).collect()
+    };
+    let psi_i: Vec<Series> = pick(map.angles_rad.len(), 7)
+        .into_iter()
+        .map(|a| {
+            Series::new(
+                format!("{:.2} deg", degrees[a]),
+                finite(
+                    map.currents_a
+                        .iter()
+                        .zip(&map.flux_linkage_wb[a])
+                        .map(|(&i, &p)| (i, p))
+                        .collect(),
+                ),
+            )
+        })
+        .collect();
+    let svg = xy_chart_svg(
+        &psi_i,
+        &ChartOptions {
+            title: format!("magnetisation curves of `{}` ({whole})", map.phase),
+            x_label: "phase current (A)".into(),
+            y_label: "flux linkage (Wb)".into(),
+            ..ChartOptions::default()
+        },
+    )
+    .map_err(plot)?;
+    write("psi_i.svg", svg)?;
+    let t_theta: Vec<Series> = pick(map.currents_a.len(), 7)
+        .into_iter()
+        .map(|c| {
+            Series::new(
+                format!("{} A", map.currents_a[c]),
+                finite(
+                    degrees
+                        .iter()
+                        .zip(&map.torque_nm)
+                        .map(|(&d, row)| (d, row[c]))
+                        .collect(),
+                ),
+            )
+        })
+        .collect();
+    let svg = xy_chart_svg(
+        &t_theta,
+        &ChartOptions {
+            title: format!(
+                "static torque with `{}` at several currents ({whole})",
+                map.phase
+            ),
+            x_label: "rotor angle (deg)".into(),
+            y_label: "torque (N m)".into(),
+            include_zero_y: true,
+            ..ChartOptions::default()
+        },
+    )
+    .map_err(plot)?;
+    write("torque_theta.svg", svg)?;
+    if map.failed.is_empty() {
+        for (file, values, what) in [
+            ("psi_map.svg", &map.flux_linkage_wb, "flux linkage (Wb)"),
+            ("torque_map.svg", &map.torque_nm, "torque (N m)"),
+        ] {
+            let svg = filled_contour_svg(
+                &degrees,
+                &map.currents_a,
+                values,
+                &ContourOptions {
+                    title: format!("{what} of `{}` over angle and current ({whole})", map.phase),
+                    x_label: "rotor angle (deg)".into(),
+                    y_label: "phase current (A)".into(),
+                    z_label: what.into(),
+                    ..ContourOptions::default()
+                },
+            )
+            .map_err(plot)?;
+            write(file, svg)?;
+        }
+    }
+    // Flux maps at the first and last angle, the phase at its largest current.
+    let rot = case
+        .rotation()
+        .ok_or("the case has no [rotation] section")?;
+    let (_, rigid, _) = moving_parts(case).map_err(|e| e.to_string())?;
+    let settings = TorqueSweepSettings {
+        group: rot.group.clone(),
+        centre: rot.centre_m,
+        body: Body::new(&rot.body),
+        gap: None,
+        sectors: rot.sectors,
+        coenergy_step_rad: None,
+        windings: Vec::new(),
+        force: ForceSettings::default(),
+    };
+    let current = map
+        .currents_a
+        .iter()
+        .copied()
+        .fold(f64::NEG_INFINITY, f64::max);
+    let last = map.angles_rad.len() - 1;
+    for (file, a) in [("flux_first_angle.svg", 0), ("flux_last_angle.svg", last)] {
+        let sol = crate::study::solution_at_angle(
+            &rigid,
+            map.angles_rad[a],
+            &vec![(map.phase.clone(), current)],
+            &settings,
+            |m| study_model(case, m),
+        )
+        .map_err(|e| e.to_string())?;
+        let mesh = sol.model().mesh();
+        let nv = mesh.vertices().len();
+        let cells: Vec<f64> = (0..mesh.triangles().len())
+            .map(|t| {
+                let b = sol.flux_density_at_quadrature(coercive_mesh::TriangleId(t as u32));
+                b.iter().map(|b| b[0].hypot(b[1])).sum::<f64>() / b.len() as f64
+            })
+            .collect();
+        let svg = field_map_svg(
+            mesh,
+            &sol.potential()[..nv],
+            &cells,
+            &FieldMapOptions {
+                title: format!(
+                    "rotor at {:.2} deg, `{}` at {current} A: |B| and flux lines",
+                    degrees[a], map.phase
+                ),
+                flux_lines: 40,
+                ..FieldMapOptions::default()
+            },
+        )
+        .map_err(plot)?;
+        write(file, svg)?;
+    }
+    Ok(written)
+}
+
 impl std::fmt::Display for RotationSummary {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         let whole = if self.sectors == 1 {
@@ -565,6 +800,15 @@ impl std::fmt::Display for RotationSummary {
                     e.torque_integral_j,
                     e.cogging_integral_j,
                     e.average_torque_nm
+                )?;
+            }
+            for p in &m.failed {
+                writeln!(
+                    f,
+                    "failed point at {:.3} deg, {} A (left out of the maps): {}",
+                    p.angle_rad.to_degrees(),
+                    p.current_a,
+                    p.reason
                 )?;
             }
             if let Some(r) = &self.reciprocity {

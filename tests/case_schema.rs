@@ -331,3 +331,26 @@ fn retired_preset_names_say_what_to_write_instead() {
         "{message}"
     );
 }
+
+#[test]
+fn a_winding_states_its_parallel_paths_and_end_windings() {
+    let text = ring(&GOOD.replace(
+        "turns = 1\n",
+        "turns = 1\nparallel_paths = 2\nend_winding_inductance_mh = 0.25\n",
+    ));
+    let case = Case::from_toml_str(&text).unwrap();
+    let w = &case.windings()[0];
+    assert_eq!(w.parallel_paths, 2);
+    assert!((w.end_turn_inductance_h - 0.25e-3).abs() < 1e-18);
+    for (bad, at, word) in [
+        ("parallel_paths = 0\n", "0\ncurrent", "parallel_paths"),
+        (
+            "end_winding_inductance_mh = -1\n",
+            "-1\ncurrent",
+            "end_winding_inductance_mh",
+        ),
+    ] {
+        let text = ring(&GOOD.replace("turns = 1\n", &format!("turns = 1\n{bad}")));
+        expect_entry_error(&text, "winding", 1, "bar", at, &[word]);
+    }
+}

@@ -63,6 +63,8 @@ fn bad_rotation_sections_are_named_with_their_position() {
         ("step_deg = 2.5", "step_deg = 0", "step_deg"),
         ("from_deg = 0", "from_deg = 400", "within"),
         ("currents = [-6, -3, 3, 6]", "currents = [3, 3]", "distinct"),
+        // A twelfth of the machine repeats every 30 degrees: 0 to 45 is outside the period.
+        ("sectors = 1", "sectors = 12", "period"),
         (
             "step_deg = 2.5",
             "step_deg = 2.5\nstep = 1",
@@ -115,4 +117,63 @@ fn coercive_solve_turns_the_rotor_of_the_full_machine() {
         // Measured: within 0.3 % of each other (or 2 mN m near zero torque).
         assert!((egg - ark).abs() < 5e-3 * egg.abs().max(0.4), "{egg} {ark}");
     }
+}
+
+#[test]
+fn coercive_solve_out_writes_the_maps_curves_and_flux_maps() {
+    // A small map (3 angles x 3 currents, a coarser mesh than the case's) run from the
+    // command line with --out: the files a designer opens.
+    let text = srm_text()
+        .replace("elements_across_gap = 1 ", "elements_across_gap = 0.5 ")
+        .replace("max_size = 3.0", "max_size = 4.0")
+        .replace("current = 5.0", "current = 0.0");
+    let head = &text[..text.find("[rotation]").unwrap()];
+    let section = GOOD
+        .replace("step_deg = 2.5", "step_deg = 22.5")
+        .replace("currents = [-6, -3, 3, 6]", "currents = [-3, 3]");
+    let dir = std::env::temp_dir().join(format!("coercive-rotation-out-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let case = dir.join("map.toml");
+    std::fs::write(&case, format!("{head}{section}")).unwrap();
+    let out_dir = dir.join("out");
+    let out = Command::new(env!("CARGO_BIN_EXE_coercive"))
+        .args(["solve"])
+        .arg(&case)
+        .arg("--out")
+        .arg(&out_dir)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert!(stdout.contains("reciprocity"), "{stdout}");
+    for file in [
+        "rotation.json",
+        "rotation.csv",
+        "psi_i.svg",
+        "torque_theta.svg",
+        "psi_map.svg",
+        "torque_map.svg",
+        "flux_first_angle.svg",
+        "flux_last_angle.svg",
+    ] {
+        let body =
+            std::fs::read_to_string(out_dir.join(file)).unwrap_or_else(|e| panic!("{file}: {e}"));
+        if file.ends_with(".svg") {
+            assert!(
+                body.starts_with("<svg") && body.trim_end().ends_with("</svg>"),
+                "{file}"
+            );
+        }
+        if file.ends_with("_map.svg") {
+            assert!(body.contains("class=\"colour-bar\""), "{file}");
+            assert!(body.contains("data-band=\"0\""), "{file}");
+        }
+    }
+    let csv = std::fs::read_to_string(out_dir.join("rotation.csv")).unwrap();
+    assert_eq!(csv.lines().count(), 1 + 3 * 3);
+    std::fs::remove_dir_all(&dir).unwrap();
 }

@@ -63,29 +63,54 @@ pub struct WindingSide {
     pub sense: Sense,
 }
 
-/// A winding of `turns` turns carrying `current_a` amperes. Each side is a region holding all
-/// `turns` conductors, so the current density in a side is `turns * current_a / area` (A/m^2),
-/// with the side's area taken from the mesh (uniform over the side: a stranded coil).
+/// A winding (a phase) of `turns` turns per side carrying the terminal current `current_a`
+/// amperes, its conductors connected in `parallel_paths` parallel paths. Each side is a
+/// region holding its `turns` conductors, each carrying `current_a / parallel_paths`, so the
+/// current density in a side is `turns * current_a / (parallel_paths * area)` (A/m^2), with
+/// the side's area taken from the mesh (uniform over the side: a stranded coil).
+///
+/// A phase of several coils lists every coil's sides. With `a` parallel paths each path
+/// holds 1/a of the coils in series, so the flux linkage at the terminals is the sum over
+/// all sides divided by `a` (and the terminal current is `a` times the current of a coil);
+/// the product of the two, and so the energy, is the same for any `a`. The end windings,
+/// outside a planar model's cross-section, add `end_turn_inductance_h` times the terminal
+/// current to the flux linkage (their field is not modelled: an estimate or a measured
+/// figure, e.g. from a 3D solve or a handbook formula for the overhang).
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Winding {
     /// The winding's name (used in errors and results).
     pub name: String,
-    /// Number of turns (non-zero, finite).
+    /// Number of turns (conductors) in each side (non-zero, finite).
     pub turns: f64,
-    /// Current (A) in each turn.
+    /// Terminal current of the winding (A); each conductor carries
+    /// `current_a / parallel_paths`.
     pub current_a: f64,
     /// The sides with their sense.
     pub sides: Vec<WindingSide>,
+    /// Number of parallel paths the sides' conductors are connected in (at least 1).
+    #[serde(default = "one_path")]
+    pub parallel_paths: u32,
+    /// Inductance of the end windings outside the modelled cross-section (H, at the
+    /// terminals, >= 0), added to the flux linkage as `end_turn_inductance_h * current_a`.
+    #[serde(default)]
+    pub end_turn_inductance_h: f64,
+}
+
+fn one_path() -> u32 {
+    1
 }
 
 impl Winding {
-    /// A winding without sides yet; add them with [`Winding::side`].
+    /// A winding without sides yet, one path, no end-winding inductance; add sides with
+    /// [`Winding::side`].
     pub fn new(name: &str, turns: f64, current_a: f64) -> Self {
         Self {
             name: name.to_string(),
             turns,
             current_a,
             sides: Vec::new(),
+            parallel_paths: 1,
+            end_turn_inductance_h: 0.0,
         }
     }
 
@@ -96,6 +121,29 @@ impl Winding {
             sense,
         });
         self
+    }
+
+    /// Connects the conductors in `paths` parallel paths (checked when the model is built).
+    pub fn parallel_paths(mut self, paths: u32) -> Self {
+        self.parallel_paths = paths;
+        self
+    }
+
+    /// Sets the end-winding inductance (H, at the terminals; checked when the model is
+    /// built).
+    pub fn end_turn_inductance(mut self, henry: f64) -> Self {
+        self.end_turn_inductance_h = henry;
+        self
+    }
+
+    /// Current in each conductor (A): the terminal current over the parallel paths.
+    pub fn conductor_current_a(&self) -> f64 {
+        self.current_a / f64::from(self.parallel_paths.max(1))
+    }
+
+    /// A side's ampere-turns per ampere of terminal current: `turns / parallel_paths`.
+    pub fn turns_per_path(&self) -> f64 {
+        self.turns / f64::from(self.parallel_paths.max(1))
     }
 }
 
@@ -451,13 +499,23 @@ impl ModelBuilder {
             if w.sides.is_empty() {
                 return Err(bad("no sides".into()));
             }
+            if w.parallel_paths == 0 {
+                return Err(bad("zero parallel paths (at least 1)".into()));
+            }
+            if !(w.end_turn_inductance_h.is_finite() && w.end_turn_inductance_h >= 0.0) {
+                return Err(bad(format!(
+                    "end-winding inductance {} H (must be finite and >= 0)",
+                    w.end_turn_inductance_h
+                )));
+            }
             for s in &w.sides {
                 let r = region(&format!("winding `{}` side", w.name), &s.region)?;
                 let area = region_areas[r.index()];
                 if area <= 0.0 {
                     return Err(bad(format!("side `{}` has no area", s.region)));
                 }
-                region_current_density[r.index()] += s.sense.sign() * w.turns * w.current_a / area;
+                region_current_density[r.index()] +=
+                    s.sense.sign() * w.turns_per_path() * w.current_a / area;
             }
         }
 
@@ -600,7 +658,7 @@ impl Model {
         &self.region_centroids
     }
 
-    /// This model with winding `name` carrying `current_a` amperes per turn instead (the
+    /// This model with winding `name` carrying the terminal current `current_a` amperes instead (the
     /// current densities of its sides follow; nothing else is rebuilt).
     ///
     /// # Errors
@@ -637,7 +695,7 @@ impl Model {
             // Sides were validated when the model was built.
             if let Some(r) = m.mesh.region_by_name(&side.region) {
                 m.region_current_density[r.index()] +=
-                    side.sense.sign() * w.turns * delta / m.region_areas[r.index()];
+                    side.sense.sign() * w.turns_per_path() * delta / m.region_areas[r.index()];
             }
         }
         Ok(m)
@@ -649,7 +707,8 @@ impl Model {
         let w = &self.spec.windings[k];
         for side in &w.sides {
             if let Some(r) = self.mesh.region_by_name(&side.region) {
-                j[r.index()] += side.sense.sign() * w.turns / self.region_areas[r.index()];
+                j[r.index()] +=
+                    side.sense.sign() * w.turns_per_path() / self.region_areas[r.index()];
             }
         }
         j

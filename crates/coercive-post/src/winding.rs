@@ -9,6 +9,12 @@
 //! - axisymmetric: psi = sum over sides of sense * (N / S) * integral of 2 pi r A_phi dA (Wb),
 //!   since 2 pi r A_phi is the flux through the circle of radius r.
 //!
+//! A winding of `a` parallel paths (each holding 1/a of the sides' conductors in series,
+//! each conductor carrying i / a of the terminal current i) links psi / a at its terminals;
+//! the end windings outside a planar cross-section add L_end i (the winding's stated
+//! end-turn inductance). Both are part of `total_wb`; the per-metre value is the
+//! cross-section's alone.
+//!
 //! The integrals are exact for the element's polynomial potential (quadrature of degree p
 //! planar, p + 1 axisymmetric). Co-energy and energy then satisfy W = psi i / 2 for linear
 //! devices without magnets (e.g. Hammond, Electromagnetism for Engineers, 4th ed., ch. 6).
@@ -43,10 +49,16 @@ pub struct FluxLinkage {
     pub turns: f64,
     /// Its current (A).
     pub current_a: f64,
-    /// Planar models: flux linkage per metre of depth (Wb/m); `None` for axisymmetric ones.
+    /// Number of parallel paths of the winding.
+    pub parallel_paths: u32,
+    /// Planar models: flux linkage of the modelled cross-section per metre of depth (Wb/m),
+    /// end windings excluded; `None` for axisymmetric ones.
     pub per_metre_wb_per_m: Option<f64>,
-    /// Flux linkage of the device (Wb): per metre times the depth (planar), as computed
-    /// (axisymmetric).
+    /// Flux linkage of the end windings (Wb): the winding's end-turn inductance times its
+    /// current (zero unless the winding states one).
+    pub end_winding_wb: f64,
+    /// Flux linkage of the device at the terminals (Wb): per metre times the depth (planar)
+    /// or as computed (axisymmetric), plus `end_winding_wb`.
     pub total_wb: f64,
 }
 
@@ -136,21 +148,21 @@ fn linkage_from(
         }
         psi += side.sense.sign() * w.turns / area * integrals[r.index()];
     }
-    Ok(match solution.depth_m() {
-        Some(depth) => FluxLinkage {
-            winding: w.name.clone(),
-            turns: w.turns,
-            current_a: w.current_a,
-            per_metre_wb_per_m: Some(psi),
-            total_wb: psi * depth,
-        },
-        None => FluxLinkage {
-            winding: w.name.clone(),
-            turns: w.turns,
-            current_a: w.current_a,
-            per_metre_wb_per_m: None,
-            total_wb: psi,
-        },
+    // Each of the `a` parallel paths holds 1/a of the sides' conductors in series.
+    let psi = psi / f64::from(w.parallel_paths.max(1));
+    let end_winding_wb = w.end_turn_inductance_h * w.current_a;
+    let (per_metre_wb_per_m, cross_section_wb) = match solution.depth_m() {
+        Some(depth) => (Some(psi), psi * depth),
+        None => (None, psi),
+    };
+    Ok(FluxLinkage {
+        winding: w.name.clone(),
+        turns: w.turns,
+        current_a: w.current_a,
+        parallel_paths: w.parallel_paths.max(1),
+        per_metre_wb_per_m,
+        end_winding_wb,
+        total_wb: cross_section_wb + end_winding_wb,
     })
 }
 

@@ -413,3 +413,102 @@ fn working_point_chart_shows_recoil_and_load_lines() {
     assert!(texts.contains(&"magnet & pole: mean working point"));
     assert!(working_point_chart_svg(&[], &ChartOptions::default()).is_err());
 }
+
+#[test]
+fn filled_contours_are_well_formed_and_their_bands_ordered() {
+    use coercive_post::plot::{filled_contour_svg, ContourOptions};
+    // z = x + 2 y on [0, 4] x [0, 3]: the piecewise-linear interpolant is exact, so band k
+    // is the strip levels[k] <= x + 2 y <= levels[k + 1].
+    let x: Vec<f64> = (0..=8).map(|k| 0.5 * f64::from(k)).collect();
+    let y: Vec<f64> = (0..=6).map(|k| 0.5 * f64::from(k)).collect();
+    let z: Vec<Vec<f64>> = x
+        .iter()
+        .map(|&a| y.iter().map(|&b| a + 2.0 * b).collect())
+        .collect();
+    let options = ContourOptions {
+        title: "a plane & its bands".into(),
+        x_label: "angle (deg)".into(),
+        y_label: "current (A)".into(),
+        z_label: "flux linkage (Wb)".into(),
+        ..ContourOptions::default()
+    };
+    let svg = filled_contour_svg(&x, &y, &z, &options).unwrap();
+    let doc = parse(&svg);
+    let band = |n: &roxmltree::Node, key: &str| n.attribute(key).unwrap().parse::<f64>().unwrap();
+    let paths: Vec<_> = doc
+        .descendants()
+        .filter(|n| n.has_tag_name("path") && n.attribute("data-band").is_some())
+        .collect();
+    let bars: Vec<_> = doc
+        .descendants()
+        .filter(|n| n.has_tag_name("rect") && n.attribute("data-band").is_some())
+        .collect();
+    // Automatic levels span 0..10 (nice steps); every band meets the plane.
+    assert!(paths.len() >= 4, "{}", paths.len());
+    assert_eq!(paths.len(), bars.len());
+    for (k, (p, b)) in paths.iter().zip(&bars).enumerate() {
+        assert_eq!(p.attribute("data-band").unwrap(), k.to_string());
+        assert_eq!(p.attribute("fill"), b.attribute("fill"));
+        assert!(band(p, "data-low") < band(p, "data-high"));
+        if k > 0 {
+            // Levels increase band by band, and the bar runs bottom (low) to top (high).
+            assert_eq!(band(p, "data-low"), band(&paths[k - 1], "data-high"));
+            let (y_prev, y_here) = (band(&bars[k - 1], "y"), band(b, "y"));
+            assert!(y_here < y_prev, "band {k} drawn below band {}", k - 1);
+        }
+    }
+    assert!(band(&paths[0], "data-low") <= 0.0);
+    assert!(band(paths.last().unwrap(), "data-high") >= 10.0);
+    // Colours differ between neighbouring bands.
+    assert!(paths
+        .windows(2)
+        .all(|w| w[0].attribute("fill") != w[1].attribute("fill")));
+    assert!(svg.contains("a plane &amp; its bands"));
+
+    // Given levels; values outside them are left blank (fewer bands drawn).
+    let svg = filled_contour_svg(
+        &x,
+        &y,
+        &z,
+        &ContourOptions {
+            levels: Some(vec![2.0, 4.0, 6.0]),
+            ..ContourOptions::default()
+        },
+    )
+    .unwrap();
+    let doc = parse(&svg);
+    assert_eq!(
+        doc.descendants()
+            .filter(|n| n.has_tag_name("path") && n.attribute("data-band").is_some())
+            .count(),
+        2
+    );
+
+    // Bad input is refused by name.
+    let e = filled_contour_svg(&x, &y[..3], &z, &options).unwrap_err();
+    assert!(matches!(e, PlotError::LengthMismatch { .. }), "{e}");
+    let mut bad = z.clone();
+    bad[2][3] = f64::NAN;
+    let e = filled_contour_svg(&x, &y, &bad, &options).unwrap_err();
+    assert!(matches!(e, PlotError::NotFinite { .. }), "{e}");
+    let e = filled_contour_svg(
+        &x,
+        &y,
+        &z,
+        &ContourOptions {
+            levels: Some(vec![3.0, 1.0]),
+            ..ContourOptions::default()
+        },
+    )
+    .unwrap_err();
+    assert!(
+        matches!(
+            e,
+            PlotError::InvalidOption {
+                option: "levels",
+                ..
+            }
+        ),
+        "{e}"
+    );
+}

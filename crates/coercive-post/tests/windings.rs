@@ -108,6 +108,104 @@ fn coaxial_cable_inductance_per_metre_from_flux_linkage() {
 }
 
 #[test]
+fn a_toroid_wound_in_parallel_paths_with_end_windings() {
+    // The toroid below (N = 100 turns, h = 10 mm, a = 20 mm, b = 30 mm; L = mu0 N^2 h
+    // ln(b/a) / (2 pi), shared/check-values.md item 8) with its conductors connected in two
+    // parallel paths of N/2 turns each: every path links the whole core flux, so the
+    // terminals see L = mu0 (N/2)^2 h ln(b/a) / (2 pi), a quarter of the series value
+    // (Ampere's law with N conductors carrying i/2; e.g. Cheng, sec. 6-12), plus the stated
+    // end-turn inductance. At a fixed current per conductor the field is the series one.
+    let (n, h, a, b): (f64, f64, f64, f64) = (100.0, 0.010, 0.020, 0.030);
+    let mut radii = vec![0.0];
+    radii.extend(steps(0.0, a, 10));
+    radii.extend(steps(a, b, 20));
+    radii.extend(steps(b, b + 0.002, 2));
+    let mut regions = vec!["inner_side"; 10];
+    regions.extend(["core"; 20]);
+    regions.extend(["outer_side"; 2]);
+    let mesh = polar_disc(&radii, &regions, 96);
+    let build = |paths: u32, end_h: f64, current: f64| {
+        Model::builder(mesh.clone(), Formulation::Planar { depth_m: h })
+            .order(ElementOrder::P2)
+            .material("inner_side", Material::vacuum())
+            .material("core", Material::vacuum())
+            .material("outer_side", Material::vacuum())
+            .winding(
+                Winding::new("toroid", n, current)
+                    .side("inner_side", Sense::Positive)
+                    .side("outer_side", Sense::Negative)
+                    .parallel_paths(paths)
+                    .end_turn_inductance(end_h),
+            )
+            .fixed_potential("outer", 0.0)
+            .build()
+            .unwrap()
+            .solve()
+            .unwrap()
+    };
+    let i_coil = 1.9; // A in each conductor
+    let end_h = 2.5e-6;
+    let series = build(1, 0.0, i_coil);
+    let parallel = build(2, end_h, 2.0 * i_coil);
+    // Same conductor current, same field: energy and core flux agree.
+    assert!(rel(parallel.energy(), series.energy()) < 1e-12);
+    let psi_s = flux_linkage(&series, "toroid").unwrap();
+    let psi_p = flux_linkage(&parallel, "toroid").unwrap();
+    assert_eq!(psi_p.parallel_paths, 2);
+    assert!((psi_p.end_winding_wb - end_h * 2.0 * i_coil).abs() < 1e-18);
+    // Terminal flux linkage: half the series one (each path holds half the turns) plus
+    // the end windings; the cross-section part per metre is the series one halved.
+    let expected = 0.5 * psi_s.total_wb + end_h * 2.0 * i_coil;
+    assert!(rel(psi_p.total_wb, expected) < 1e-12, "{psi_p:?}");
+    assert!(
+        rel(
+            psi_p.per_metre_wb_per_m.unwrap(),
+            0.5 * psi_s.per_metre_wb_per_m.unwrap()
+        ) < 1e-12
+    );
+    // Against the closed form with the flux inside the sides (planar, uniform current
+    // density: L = mu0 N^2 h / (2 pi) integral of f(r)^2 / r dr, f the enclosed fraction of
+    // the current; the inner side fills r < a, where f = r^2 / a^2 gives 1/4).
+    let b1 = b + 0.002;
+    let f_out = |r: f64| ((b1 * b1 - r * r) / (b1 * b1 - b * b)).powi(2) / r;
+    let l_series =
+        MU_0 * n * n * h / (2.0 * PI) * (0.25 + (b / a).ln() + integral(f_out, b, b1, 4));
+    let l_s = apparent_inductance(&series, "toroid").unwrap().total_h;
+    let l_p = apparent_inductance(&parallel, "toroid").unwrap().total_h;
+    eprintln!(
+        "toroid: series {l_s:.6e} H (exact {l_series:.6e} H), two paths {l_p:.6e} H \
+         (exact {:.6e} H with end windings {end_h:e} H)",
+        0.25 * l_series + end_h
+    );
+    assert!(rel(l_s, l_series) < 5e-4);
+    assert!(rel(l_p, 0.25 * l_series + end_h) < 5e-4);
+    assert!(rel(l_p - end_h, 0.25 * l_s) < 1e-12);
+    // Incremental inductance sees the end windings too (linear device: equal to apparent).
+    let solver = Solver::new(parallel.model()).unwrap();
+    let inc = incremental_inductance(
+        &parallel,
+        Some(&solver),
+        "toroid",
+        &DifferenceSettings::default(),
+    )
+    .unwrap();
+    assert!(rel(inc.total_h, l_p) < 1e-6, "{inc:?} {l_p}");
+    // Zero paths are refused by name.
+    let e = Model::builder(mesh.clone(), Formulation::Planar { depth_m: h })
+        .material("inner_side", Material::vacuum())
+        .material("core", Material::vacuum())
+        .material("outer_side", Material::vacuum())
+        .winding(
+            Winding::new("toroid", n, 1.0)
+                .side("inner_side", Sense::Positive)
+                .parallel_paths(0),
+        )
+        .build()
+        .unwrap_err();
+    assert!(e.to_string().contains("toroid"), "{e}");
+}
+
+#[test]
 fn toroid_of_rectangular_section_from_core_flux_and_from_flux_linkage() {
     // Toroid with N = 100 turns, height h = 10 mm, core a = 20 mm to b = 30 mm: the planar
     // ring model with depth h (shared/check-values.md item 8): L = mu0 N^2 h ln(b/a)/(2 pi)

@@ -10,12 +10,15 @@
 //!   preserved.
 //! - [`xy_chart_svg`]: axes with "nice" 1-2-5 ticks, grid, legend, several series with
 //!   markers, optional logarithmic x axis.
+//! - [`filled_contour_svg`]: filled contour bands of a function on a rectilinear grid (the
+//!   psi(theta, i) and T(theta, i) maps of a machine) with a colour bar.
 //! - [`working_point_chart_svg`]: each magnet's recoil line, load line and working points.
 //! - [`table_csv`], [`table_json`], [`Table`]: the numbers behind every chart.
 //! - [`ColourMap`]: a perceptually uniform sequential colour map built in Oklab.
 
 mod chart;
 mod colour;
+mod contour;
 mod field_map;
 mod svg;
 mod table;
@@ -26,6 +29,7 @@ pub use chart::{xy_chart_svg, ChartOptions, LineStyle, Marker, Series, SeriesSty
 pub use colour::{
     linear_to_srgb, oklab_to_srgb, series_colour, srgb_to_linear, srgb_to_oklab, ColourMap,
 };
+pub use contour::{filled_contour_svg, ContourOptions};
 pub use field_map::{axisymmetric_flux_function, field_map_svg, FieldMapOptions};
 pub use table::{table_csv, table_json, Table};
 pub use ticks::{log_ticks, nice_ticks, Ticks};
