@@ -371,6 +371,29 @@ fn contact_force_extrapolation_recovers_the_image_force_at_zero_gap() {
     assert!((c.force - contact).abs() <= c.uncertainty);
     assert_eq!(c.smallest_gap_m, 0.025e-3);
     assert_eq!(c.smallest_gap_force, forces[2]);
+    // The estimate is the distance to the fit through the three largest gaps (0.05, 0.1 and
+    // 0.2 mm: that fit alone is also a contact force with its own smaller gaps), and it is
+    // not wildly pessimistic (measured 1.4e-4).
+    let large = contact_force(
+        &[0.05e-3, 0.1e-3, 0.2e-3, 0.4e-3],
+        &[0.05e-3, 0.1e-3, 0.2e-3, 0.4e-3].map(image_force),
+    )
+    .unwrap();
+    assert_eq!(c.uncertainty, (c.force - large.force).abs());
+    assert!(c.uncertainty < 5e-4 * contact.abs(), "{}", c.uncertainty);
+    // With five gaps the fit still takes the three smallest and the estimate the three
+    // largest (0.1, 0.2, 0.4 mm).
+    let five = [0.2e-3, 0.025e-3, 0.4e-3, 0.05e-3, 0.1e-3];
+    let c5 = contact_force(&five, &five.map(image_force)).unwrap();
+    let largest = contact_force(
+        &[0.1e-3, 0.2e-3, 0.4e-3, 0.8e-3],
+        &[0.1e-3, 0.2e-3, 0.4e-3, 0.8e-3].map(image_force),
+    )
+    .unwrap();
+    assert_eq!(c5.force, c.force);
+    assert_eq!(c5.uncertainty, (c5.force - largest.force).abs());
+    assert!(c5.uncertainty > c.uncertainty);
+    // A plain linear extrapolation from the two smallest gaps misses by the g ln g term.
     let linear = 2.0 * forces[2] - image_force(0.05e-3);
     assert!((linear - contact).abs() / contact.abs() > 5e-3);
     // Bad input names the argument.
@@ -381,6 +404,8 @@ fn contact_force_extrapolation_recovers_the_image_force_at_zero_gap() {
     assert!(bad(&gaps, &forces[..3]).contains("forces"));
     assert!(bad(&gaps[..3], &forces[..3]).contains("number of gaps"));
     assert!(bad(&[1e-4, -1e-4, 2e-4, 3e-4], &forces).contains("gap"));
+    assert!(bad(&[1e-4, 0.0, 2e-4, 3e-4], &forces).contains("gap"));
+    assert!(bad(&[1e-4, f64::INFINITY, 2e-4, 3e-4], &forces).contains("gap"));
     assert!(bad(&[1e-4, 1e-4, 2e-4, 3e-4], &forces).contains("gap"));
     assert!(bad(&gaps, &[1.0, f64::NAN, 2.0, 3.0]).contains("force at the gap"));
 }

@@ -105,20 +105,17 @@ pub fn contact_force(gaps_m: &[f64], forces: &[f64]) -> Result<ContactForce, Pos
     })
 }
 
-/// F0 of F(g) = F0 + a g ln(g / s) + b g / s through three points (s the largest gap, which
-/// keeps the system well scaled; the change of scale only mixes a into b), by Cramer's rule.
+/// F0 of F(g) = F0 + a x ln x + b x, x = g / s, through three points with s the largest gap
+/// (the scaling keeps the system well conditioned; a change of s only mixes a into b, not
+/// F0). At x = 1, F(s) = F0 + b, so F(x_k) - F(s) = a x_k ln x_k + b (x_k - 1) for the two
+/// smaller points gives a and b, and F0 = F(s) - b.
 fn zero_gap_limit(p: [(f64, f64); 3]) -> f64 {
     let s = p[2].0;
-    let row = |(g, _): (f64, f64)| [1.0, g / s * (g / s).ln(), g / s];
-    let m = [row(p[0]), row(p[1]), row(p[2])];
-    let det = |m: [[f64; 3]; 3]| {
-        m[0][0] * (m[1][1] * m[2][2] - m[1][2] * m[2][1])
-            - m[0][1] * (m[1][0] * m[2][2] - m[1][2] * m[2][0])
-            + m[0][2] * (m[1][0] * m[2][1] - m[1][1] * m[2][0])
-    };
-    let mut m0 = m;
-    for (k, row) in m0.iter_mut().enumerate() {
-        row[0] = p[k].1;
-    }
-    det(m0) / det(m)
+    let (x1, x2) = (p[0].0 / s, p[1].0 / s);
+    let (d1, d2) = (p[0].1 - p[2].1, p[1].1 - p[2].1);
+    let (l1, l2) = (x1 * x1.ln(), x2 * x2.ln());
+    let (e1, e2) = (x1 - 1.0, x2 - 1.0);
+    // a l_k + b e_k = d_k (k = 1, 2), by Cramer's rule.
+    let b = (l1 * d2 - l2 * d1) / (l1 * e2 - l2 * e1);
+    p[2].1 - b
 }
