@@ -17,6 +17,9 @@
 //!   F = dW'/dx at constant current, from solutions at positions of the moving part, with a
 //!   Richardson estimate of the step's truncation error; [`BodyRole`] gives the sign of the
 //!   force on a body that is the moving part or apart from it.
+//! - **Force at contact** ([`contact_force`]): the limit of the force at small gaps, fitted
+//!   with the logarithmic term of a pole edge near the workpiece, for a body touching it
+//!   (which no air-based method sees).
 //!
 //! # Units and formulations
 //! Planar results are per metre of depth (N/m, N m/m) with totals for the stack depth
@@ -32,6 +35,7 @@
 
 mod arkkio;
 mod coenergy;
+mod contact;
 mod path;
 mod shell;
 
@@ -39,6 +43,7 @@ pub use arkkio::{arkkio_torque, AirGap, ArkkioTorque};
 pub use coenergy::{
     coenergy_force, coenergy_force_richardson, BodyRole, CoenergyForce, CoenergyRichardson,
 };
+pub use contact::{contact_force, ContactForce};
 pub use path::{stress_on_path, ClosedPath};
 pub use shell::{eggshell, force_on};
 
