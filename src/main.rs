@@ -112,12 +112,9 @@ fn main() -> ExitCode {
 fn run_materials(args: &MaterialsArgs) -> Result<(), String> {
     let list = coercive::materials::preset_list().map_err(|e| e.to_string())?;
     if let Some(dir) = &args.svg {
-        std::fs::create_dir_all(dir)
-            .map_err(|e| format!("cannot create {}: {e}", dir.display()))?;
+        let mut out = coercive::solve::OutputDir::create(dir)?;
         for (file, svg) in coercive::materials::preset_charts(&list).map_err(|e| e.to_string())? {
-            let path = dir.join(file);
-            std::fs::write(&path, svg)
-                .map_err(|e| format!("cannot write {}: {e}", path.display()))?;
+            out.write(&file, svg)?;
         }
     }
     if args.json {

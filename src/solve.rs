@@ -117,6 +117,44 @@ pub fn moving_parts(
     Ok((geometry, rigid, drawn))
 }
 
+/// A folder that a study's outputs are written into, remembering every file written.
+#[derive(Debug)]
+pub struct OutputDir {
+    dir: std::path::PathBuf,
+    written: Vec<std::path::PathBuf>,
+}
+
+impl OutputDir {
+    /// Creates the folder `dir` (and its parents) if needed.
+    ///
+    /// # Errors
+    /// The I/O error, as text naming the folder.
+    pub fn create(dir: &std::path::Path) -> Result<OutputDir, String> {
+        std::fs::create_dir_all(dir)
+            .map_err(|e| format!("cannot create {}: {e}", dir.display()))?;
+        Ok(OutputDir {
+            dir: dir.to_path_buf(),
+            written: Vec::new(),
+        })
+    }
+
+    /// Writes `text` into the file `name` of the folder.
+    ///
+    /// # Errors
+    /// The I/O error, as text naming the file.
+    pub fn write(&mut self, name: &str, text: impl AsRef<[u8]>) -> Result<(), String> {
+        let path = self.dir.join(name);
+        std::fs::write(&path, text).map_err(|e| format!("cannot write {}: {e}", path.display()))?;
+        self.written.push(path);
+        Ok(())
+    }
+
+    /// The files written, in order.
+    pub fn into_written(self) -> Vec<std::path::PathBuf> {
+        self.written
+    }
+}
+
 /// The largest side of the bounding box of `mesh` (m).
 pub fn mesh_extent(mesh: &Mesh) -> f64 {
     let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
@@ -546,16 +584,9 @@ pub fn write_rotation_outputs(
         field_map_svg, filled_contour_svg, xy_chart_svg, ChartOptions, ContourOptions,
         FieldMapOptions, Series,
     };
-    std::fs::create_dir_all(dir).map_err(|e| format!("{}: {e}", dir.display()))?;
-    let mut written = Vec::new();
-    let mut write = |name: &str, text: String| -> Result<(), String> {
-        let path = dir.join(name);
-        std::fs::write(&path, text).map_err(|e| format!("{}: {e}", path.display()))?;
-        written.push(path);
-        Ok(())
-    };
+    let mut out = OutputDir::create(dir)?;
     let plot = |e: coercive_post::plot::PlotError| e.to_string();
-    write(
+    out.write(
         "rotation.json",
         serde_json::to_string_pretty(summary).map_err(|e| e.to_string())?,
     )?;
@@ -577,7 +608,7 @@ pub fn write_rotation_outputs(
                 p.arkkio_nm.map_or(String::new(), |t| format!("{t:e}"))
             ));
         }
-        write("rotation.csv", csv)?;
+        out.write("rotation.csv", csv)?;
         let mut series = vec![Series::new(
             "eggshell",
             summary
@@ -607,10 +638,10 @@ pub fn write_rotation_outputs(
             },
         )
         .map_err(plot)?;
-        write("torque_theta.svg", svg)?;
-        return Ok(written);
+        out.write("torque_theta.svg", svg)?;
+        return Ok(out.into_written());
     };
-    write("rotation.csv", map.to_csv())?;
+    out.write("rotation.csv", map.to_csv())?;
     let degrees: Vec<f64> = map.angles_rad.iter().map(|a| a.to_degrees()).collect();
     // At most `n` indices spread evenly over 0..len, first and last included.
     let pick = |len: usize, n: usize| -> Vec<usize> {
@@ -651,7 +682,7 @@ pub fn write_rotation_outputs(
         },
     )
     .map_err(plot)?;
-    write("psi_i.svg", svg)?;
+    out.write("psi_i.svg", svg)?;
     let t_theta: Vec<Series> = pick(map.currents_a.len(), 7)
         .into_iter()
         .map(|c| {
@@ -681,7 +712,7 @@ pub fn write_rotation_outputs(
         },
     )
     .map_err(plot)?;
-    write("torque_theta.svg", svg)?;
+    out.write("torque_theta.svg", svg)?;
     if map.failed.is_empty() {
         for (file, values, what) in [
             ("psi_map.svg", &map.flux_linkage_wb, "flux linkage (Wb)"),
@@ -700,7 +731,7 @@ pub fn write_rotation_outputs(
                 },
             )
             .map_err(plot)?;
-            write(file, svg)?;
+            out.write(file, svg)?;
         }
     }
     // Flux maps at the first and last angle, the phase at its largest current.
@@ -755,9 +786,9 @@ pub fn write_rotation_outputs(
             },
         )
         .map_err(plot)?;
-        write(file, svg)?;
+        out.write(file, svg)?;
     }
-    Ok(written)
+    Ok(out.into_written())
 }
 
 impl std::fmt::Display for RotationSummary {

@@ -1317,16 +1317,10 @@ pub fn write_outputs(
     dir: &std::path::Path,
     title: &str,
 ) -> Result<Vec<std::path::PathBuf>, String> {
+    use crate::solve::OutputDir;
     use coercive_post::plot::{xy_chart_svg, ChartOptions, Series, Table};
-    std::fs::create_dir_all(dir).map_err(|e| format!("{}: {e}", dir.display()))?;
-    let mut written = Vec::new();
-    let mut write = |name: &str, text: String| -> Result<(), String> {
-        let path = dir.join(name);
-        std::fs::write(&path, text).map_err(|e| format!("{}: {e}", path.display()))?;
-        written.push(path);
-        Ok(())
-    };
-    write(
+    let mut out = OutputDir::create(dir)?;
+    out.write(
         "switching.json",
         serde_json::to_string_pretty(report).map_err(|e| e.to_string())?,
     )?;
@@ -1357,7 +1351,7 @@ pub fn write_outputs(
             ])
             .map_err(|e| e.to_string())?;
     }
-    write("switching_force.csv", forces.to_csv())?;
+    out.write("switching_force.csv", forces.to_csv())?;
     let mut partial = Table::new(vec![
         "pulse (A-turns)".into(),
         "switched fraction (%)".into(),
@@ -1380,7 +1374,7 @@ pub fn write_outputs(
             ])
             .map_err(|e| e.to_string())?;
     }
-    write("switching_partial.csv", partial.to_csv())?;
+    out.write("switching_partial.csv", partial.to_csv())?;
     let curve = |label: &str, rows: &[ForcePoint]| {
         Series::new(
             label,
@@ -1405,7 +1399,7 @@ pub fn write_outputs(
         },
     )
     .map_err(|e| e.to_string())?;
-    write("switching_force.svg", chart)?;
+    out.write("switching_force.svg", chart)?;
     let chart = xy_chart_svg(
         &[Series::new(
             "after an OFF pulse from ON",
@@ -1430,9 +1424,9 @@ pub fn write_outputs(
         },
     )
     .map_err(|e| e.to_string())?;
-    write("switching_partial.svg", chart)?;
+    out.write("switching_partial.svg", chart)?;
     for (name, svg) in &report.flux_maps {
-        write(name, svg.clone())?;
+        out.write(name, svg.clone())?;
     }
     // Working points on the loops: each magnet's major loop with its mean working point at
     // the peak of, and after, the recommended OFF and ON pulses.
@@ -1470,7 +1464,7 @@ pub fn write_outputs(
             },
         )
         .map_err(|e| e.to_string())?;
-        write(name, chart)?;
+        out.write(name, chart)?;
     }
-    Ok(written)
+    Ok(out.into_written())
 }
