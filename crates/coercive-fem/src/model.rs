@@ -624,8 +624,21 @@ impl Model {
     }
 
     /// The material of one region.
+    ///
+    /// # Panics
+    /// If the mesh has no region `r`; [`Model::try_material`] returns an error instead.
     pub fn material(&self, r: RegionId) -> &Material {
         &self.materials[r.index()]
+    }
+
+    /// [`Model::material`] without panicking.
+    ///
+    /// # Errors
+    /// [`FemError::OutOfRange`] if the mesh has no region `r`.
+    pub fn try_material(&self, r: RegionId) -> Result<&Material, FemError> {
+        self.materials
+            .get(r.index())
+            .ok_or_else(|| region_out_of_range(r, self.materials.len()))
     }
 
     /// Materials indexed by region.
@@ -739,8 +752,23 @@ impl Model {
     }
 
     /// The name of a region.
+    ///
+    /// # Panics
+    /// If the mesh has no region `r`; [`Model::try_region_name`] returns an error instead.
     pub fn region_name(&self, r: RegionId) -> &str {
         &self.mesh.regions()[r.index()].name
+    }
+
+    /// [`Model::region_name`] without panicking.
+    ///
+    /// # Errors
+    /// [`FemError::OutOfRange`] if the mesh has no region `r`.
+    pub fn try_region_name(&self, r: RegionId) -> Result<&str, FemError> {
+        let regions = self.mesh.regions();
+        regions
+            .get(r.index())
+            .map(|region| region.name.as_str())
+            .ok_or_else(|| region_out_of_range(r, regions.len()))
     }
 
     /// Solves the model with default Newton settings (see [`Solver::solve`](crate::Solver)).
@@ -999,4 +1027,16 @@ pub(crate) fn centre_node(mesh: &Mesh, o: &OpenBoundary) -> Result<usize, FemErr
         });
     }
     Ok(i)
+}
+
+/// The error of a `try_` accessor given a region id the mesh does not hold.
+fn region_out_of_range(r: RegionId, count: usize) -> FemError {
+    FemError::OutOfRange {
+        what: "region id".into(),
+        value: r.index() as f64,
+        reason: format!(
+            "the mesh has {count} regions (ids 0 to {})",
+            count.max(1) - 1
+        ),
+    }
 }

@@ -13,6 +13,26 @@ pub enum MeshError {
         /// The violated invariant.
         what: String,
     },
+    /// One item of a mesh (a triangle, vertex, region, curve or curve pair, numbered from 1 as
+    /// in every message of the project) breaks an invariant: typically a stored mesh read back
+    /// with serde or built with [`Mesh::from_parts`](crate::Mesh::from_parts).
+    #[error("invalid mesh: {item} {why}")]
+    InvalidMeshItem {
+        /// The offending item, e.g. `triangle 12 (vertices 3, 8, 9) in region "air"`.
+        item: String,
+        /// What is wrong with it.
+        why: String,
+    },
+    /// An id passed to a `try_` accessor of a [`Mesh`](crate::Mesh) that the mesh does not hold.
+    #[error("{kind} id {id} does not exist: the mesh has {count} of them (ids start at 0)")]
+    UnknownId {
+        /// What the id names: `vertex`, `triangle`, `region` or `curve`.
+        kind: String,
+        /// The id as given (ids are 0-based handles).
+        id: u32,
+        /// How many items of this kind the mesh holds.
+        count: usize,
+    },
     /// The geometry has no curves or no region.
     #[error("empty geometry: {what}")]
     EmptyGeometry {
