@@ -299,6 +299,104 @@ impl Mesh {
             .ok_or_else(|| unknown("curve", c.0, self.curves.len()))
     }
 
+    /// The distance (m) the regions `moving` must travel along the unit vector `direction` to
+    /// touch the regions `fixed`: the gap between them as drawn, measured along the motion.
+    ///
+    /// Exact for the mesh's polygonal outlines: the first contact of two polygons in
+    /// translation is a vertex of one meeting an edge of the other, so rays are cast along
+    /// `direction` from every outline vertex of `moving` to the outline edges of `fixed`, and
+    /// back from every outline vertex of `fixed`. Outline edges are the edges of a triangle of
+    /// the set whose neighbour across the edge is outside the set (or absent).
+    ///
+    /// Returns `None` when the motion never brings the two together (they do not face each
+    /// other along `direction`), when a set is empty or an id is out of range, or when
+    /// `direction` is not a finite non-zero vector. Returns 0 when they already touch or overlap.
+    pub fn gap_along(
+        &self,
+        moving: &[RegionId],
+        fixed: &[RegionId],
+        direction: [f64; 2],
+    ) -> Option<f64> {
+        let norm = direction[0].hypot(direction[1]);
+        if !(norm > 0.0 && norm.is_finite()) {
+            return None;
+        }
+        let d = [direction[0] / norm, direction[1] / norm];
+        let moving_edges = self.outline_edges(moving);
+        let fixed_edges = self.outline_edges(fixed);
+        if moving_edges.is_empty() || fixed_edges.is_empty() {
+            return None;
+        }
+        let extent = self
+            .vertices
+            .iter()
+            .fold(0.0_f64, |m, p| m.max(p.x.abs()).max(p.y.abs()));
+        let tol = 1e-12 * extent.max(f64::MIN_POSITIVE);
+        let cross = |a: [f64; 2], b: [f64; 2]| a[0] * b[1] - a[1] * b[0];
+        // The smallest t >= 0 with p + t dir on one of `edges`.
+        let first_hit = |p: Point2, dir: [f64; 2], edges: &[(VertexId, VertexId)]| {
+            let mut best: Option<f64> = None;
+            for &(a, b) in edges {
+                let (a, b) = (self.vertices[a.index()], self.vertices[b.index()]);
+                let e = [b.x - a.x, b.y - a.y];
+                let denom = cross(dir, e);
+                if denom.abs() <= 1e-12 * e[0].hypot(e[1]) {
+                    continue; // parallel: the edge's ends are vertices of the other cast
+                }
+                let ap = [a.x - p.x, a.y - p.y];
+                let t = cross(ap, e) / denom;
+                let s = cross(ap, dir) / denom;
+                if (-1e-12..=1.0 + 1e-12).contains(&s) && t >= -tol {
+                    let t = t.max(0.0);
+                    best = Some(best.map_or(t, |m: f64| m.min(t)));
+                }
+            }
+            best
+        };
+        let mut gap: Option<f64> = None;
+        let mut keep = |t: Option<f64>| {
+            if let Some(t) = t {
+                gap = Some(gap.map_or(t, |g| g.min(t)));
+            }
+        };
+        for v in outline_vertices(&moving_edges) {
+            keep(first_hit(self.vertices[v.index()], d, &fixed_edges));
+        }
+        for v in outline_vertices(&fixed_edges) {
+            keep(first_hit(
+                self.vertices[v.index()],
+                [-d[0], -d[1]],
+                &moving_edges,
+            ));
+        }
+        gap
+    }
+
+    /// The outline edges of a set of regions: edges of the set's triangles whose other side
+    /// is not in the set. Empty if an id is out of range.
+    fn outline_edges(&self, regions: &[RegionId]) -> Vec<(VertexId, VertexId)> {
+        if regions.iter().any(|r| r.index() >= self.regions.len()) {
+            return Vec::new();
+        }
+        let mut count = std::collections::HashMap::new();
+        for (t, tri) in self.triangles.iter().enumerate() {
+            if !regions.contains(&self.triangle_regions[t]) {
+                continue;
+            }
+            for k in 0..3 {
+                let (a, b) = (tri[k], tri[(k + 1) % 3]);
+                *count.entry((a.min(b), a.max(b))).or_insert(0_u32) += 1;
+            }
+        }
+        let mut edges: Vec<_> = count
+            .into_iter()
+            .filter(|&(_, n)| n == 1)
+            .map(|(e, _)| e)
+            .collect();
+        edges.sort_unstable();
+        edges
+    }
+
     /// Checks every structural invariant listed in the type's documentation.
     ///
     /// A triangle is degenerate when twice its area is at most 1e-12 times its longest edge
@@ -464,4 +562,12 @@ fn unknown(kind: &str, id: u32, count: usize) -> MeshError {
         id,
         count,
     }
+}
+
+/// The distinct vertices of a list of edges, in increasing order.
+fn outline_vertices(edges: &[(VertexId, VertexId)]) -> Vec<VertexId> {
+    let mut v: Vec<VertexId> = edges.iter().flat_map(|&(a, b)| [a, b]).collect();
+    v.sort_unstable();
+    v.dedup();
+    v
 }
