@@ -65,3 +65,23 @@ fn a_declared_gap_that_differs_from_the_drawing_is_reported() {
     );
     assert!(w[0].contains("never reaches `plate`"), "{}", w[0]);
 }
+
+/// The solve summary prints the warning after the solve's own figures, and carries it in its
+/// JSON form (`coercive solve` fills it from the case).
+#[test]
+fn the_solve_summary_prints_the_gap_warning() {
+    let text = replace_nth(PAD, "drawn_gap = 0.5", "drawn_gap = 0.6", 0);
+    let (case, mesh) = meshed(&text);
+    let model = coercive::solve::model_from_case(&case, mesh).unwrap();
+    let (_, mut summary) = coercive::solve::solve_and_summarise(&model).unwrap();
+    assert!(summary.gap_warnings.is_empty());
+    summary.gap_warnings = drawn_gap_warnings(&case, model.mesh());
+    let printed = summary.to_string();
+    let line = printed
+        .lines()
+        .find(|l| l.starts_with("WARNING [sweep]"))
+        .unwrap_or_else(|| panic!("no gap warning in:\n{printed}"));
+    assert!(line.contains("0.6 mm") && line.contains("0.5 mm"), "{line}");
+    let json = serde_json::to_value(&summary).unwrap();
+    assert_eq!(json["gap_warnings"][0].as_str(), Some(line));
+}
