@@ -49,6 +49,17 @@ pub enum MeshError {
         /// Ordinate as given.
         y: f64,
     },
+    /// A point with a coordinate the triangulation cannot hold: nonzero but below 1e-40 m in
+    /// magnitude (write 0), or above 1e50 m.
+    #[error("{item} has a coordinate out of range ({x}, {y}): nonzero coordinates must lie between 1e-40 m and 1e50 m in magnitude (write a vanishing one as 0)")]
+    CoordinateOutOfRange {
+        /// The offending item, e.g. `point 3`.
+        item: String,
+        /// Abscissa as given (m).
+        x: f64,
+        /// Ordinate as given (m).
+        y: f64,
+    },
     /// A curve refers to a point id that does not exist.
     #[error("curve {curve} refers to point {point}, which does not exist")]
     UnknownPoint {
