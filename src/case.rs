@@ -875,7 +875,7 @@ impl Case {
                 },
             }
         })?;
-        Reader { source }.case(raw)
+        Reader::new(source).case(raw)
     }
 
     /// Reads a case file.
@@ -1053,12 +1053,41 @@ impl Case {
 /// Turns raw, spanned values into the geometry, converting lengths to metres.
 struct Reader<'a> {
     source: &'a str,
+    /// The byte offset of the start of every line of `source`, for positions in O(log n)
+    /// (every item records its position, so a scan from the start of the file for each
+    /// would make reading quadratic in the file's length).
+    line_starts: Vec<usize>,
 }
 
 /// Lengths converted to metres, with the position of the value for messages.
 impl Reader<'_> {
+    fn new(source: &str) -> Reader<'_> {
+        let line_starts = std::iter::once(0)
+            .chain(source.match_indices('\n').map(|(i, _)| i + 1))
+            .collect();
+        Reader {
+            source,
+            line_starts,
+        }
+    }
+
     fn pos<T>(&self, s: &Spanned<T>) -> Position {
-        Position::of_offset(self.source, s.span().start)
+        self.position(s.span().start)
+    }
+
+    /// The position of byte `offset` of the source, as [`Position::of_offset`] gives it.
+    fn position(&self, offset: usize) -> Position {
+        let mut offset = offset.min(self.source.len());
+        while !self.source.is_char_boundary(offset) {
+            offset -= 1;
+        }
+        // The last line starting at or before `offset`.
+        let line = self.line_starts.partition_point(|&start| start <= offset);
+        let line_start = self.line_starts[line - 1];
+        Position {
+            line,
+            column: self.source[line_start..offset].chars().count() + 1,
+        }
     }
 
     fn invalid<T>(&self, s: &Spanned<T>, what: String) -> CaseError {
@@ -1335,7 +1364,7 @@ impl Reader<'_> {
             index,
             name: Some(name.to_string()),
             what,
-            position: Position::of_offset(self.source, offset),
+            position: self.position(offset),
         }
     }
 
@@ -1851,7 +1880,7 @@ impl Reader<'_> {
                 index: i + 1,
                 name: Some(kind.to_string()),
                 what,
-                position: Position::of_offset(self.source, offset),
+                position: self.position(offset),
             };
             let keys: [(&str, Option<usize>); 8] = [
                 ("curve", b.curve.as_ref().map(|v| v.span().start)),
@@ -3305,5 +3334,19 @@ mover = ["magnet"]
         // 'd' is after a two-byte character: column 3.
         assert_eq!(Position::of_offset(s, 6), Position { line: 2, column: 3 });
         assert_eq!(Position::of_offset(s, 100), Position { line: 3, column: 1 });
+    }
+
+    #[test]
+    fn the_reader_line_index_agrees_with_the_scan_at_every_offset() {
+        for s in ["ab\ncµd\n", "", "\n\nx", "µ\n\nµµ\nend", SMALL] {
+            let reader = Reader::new(s);
+            for offset in 0..=s.len() + 2 {
+                assert_eq!(
+                    reader.position(offset),
+                    Position::of_offset(s, offset),
+                    "offset {offset} of {s:?}"
+                );
+            }
+        }
     }
 }

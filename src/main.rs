@@ -143,8 +143,9 @@ fn run_solve(args: &SolveArgs) -> Result<(), String> {
         .map_err(|e| format!("{name}: {e}"))?;
     let model =
         coercive::solve::model_from_case(&case, mesh).map_err(|e| format!("{name}: {e}"))?;
-    let (_, summary) =
+    let (_, mut summary) =
         coercive::solve::solve_and_summarise(&model).map_err(|e| format!("{name}: {e}"))?;
+    summary.gap_warnings = coercive::solve::drawn_gap_warnings(&case, model.mesh());
     if args.json {
         let mut value = serde_json::to_value(&summary).expect("a summary serialises");
         if case.sweep().is_some() {

@@ -232,6 +232,10 @@ pub struct SolveSummary {
     /// Magnets driven beyond their knee (linear models outside their validity), each with
     /// the volume fraction concerned.
     pub magnet_warnings: Vec<String>,
+    /// Declared gaps (`drawn_gap` of `[sweep]` and `[switching]`) that differ from the gap
+    /// the drawing has, each naming both values (see [`drawn_gap_warnings`]; empty unless
+    /// the caller fills it from the case).
+    pub gap_warnings: Vec<String>,
     /// Wall-clock times (s): set-up (layout, pattern, ordering), assembly, factorisation,
     /// triangular solves.
     pub setup_s: f64,
@@ -278,12 +282,160 @@ pub fn solve_and_summarise(
             .map(|(r, b)| (r.name.clone(), *b))
             .collect(),
         magnet_warnings: knee_warnings(&sol),
+        gap_warnings: Vec::new(),
         setup_s,
         assembly_s: report.times.assembly_s,
         factorisation_s: report.times.factorisation_s,
         solve_s: report.times.solve_s,
     };
     Ok((sol, summary))
+}
+
+/// Relative difference between a declared and a drawn gap above which a result says so.
+pub const GAP_WARNING_FRACTION: f64 = 1e-3;
+
+/// A gap declared in a case (`drawn_gap` of `[sweep]` or `[switching]`) against the gap its
+/// drawing has between the moving part and the body (or workpiece), measured along the motion
+/// with [`Mesh::gap_along`] on `mesh` (the case's mesh at the drawn position).
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct DrawnGap {
+    /// `sweep` or `switching`: the section declaring the gap.
+    pub section: &'static str,
+    /// The moving part (rigid group).
+    pub moving_part: String,
+    /// The regions the gap is measured to (the sweep's body or the switching workpiece).
+    pub body: Vec<String>,
+    /// Unit vector of the motion that closes the gap.
+    pub direction: [f64; 2],
+    /// The declared gap (m).
+    pub declared_m: f64,
+    /// The gap measured in the drawing (m); `None` when the motion never brings the moving
+    /// part to the body.
+    pub measured_m: Option<f64>,
+}
+
+impl DrawnGap {
+    /// True when the drawing disagrees with the declaration: no contact along the motion, or
+    /// a relative difference above [`GAP_WARNING_FRACTION`] (with a floor of 1e-9 of the
+    /// drawing's extent for tiny gaps).
+    pub fn differs(&self, extent_m: f64) -> bool {
+        match self.measured_m {
+            None => true,
+            Some(m) => {
+                (m - self.declared_m).abs()
+                    > GAP_WARNING_FRACTION * self.declared_m.abs() + 1e-9 * extent_m
+            }
+        }
+    }
+}
+
+/// The declared gaps of `case` (its `[sweep]` when swept by gap, and its `[switching]`)
+/// measured on `mesh`, the case meshed at its drawn position.
+pub fn drawn_gaps(case: &Case, mesh: &Mesh) -> Vec<DrawnGap> {
+    let group_regions = |group: &str| -> Vec<coercive_mesh::RegionId> {
+        (0..mesh.regions().len())
+            .filter(|&r| mesh.regions()[r].rigid_group.as_deref() == Some(group))
+            .map(|r| coercive_mesh::RegionId(r as u32))
+            .collect()
+    };
+    let named = |names: &[String]| -> Vec<coercive_mesh::RegionId> {
+        names
+            .iter()
+            .filter_map(|n| mesh.region_by_name(n))
+            .collect()
+    };
+    let mut out = Vec::new();
+    if let Some(sw) = case.sweep() {
+        if let (SweepParameter::Gap, Some((&value, &offset))) =
+            (sw.parameter, sw.values_m.first().zip(sw.offsets_m.first()))
+        {
+            // A gap sweep's offsets are `drawn_gap - gap`.
+            let declared = value + offset;
+            out.push(DrawnGap {
+                section: "sweep",
+                moving_part: sw.group.clone(),
+                body: sw.body.clone(),
+                direction: sw.direction,
+                declared_m: declared,
+                measured_m: mesh.gap_along(
+                    &group_regions(&sw.group),
+                    &named(&sw.body),
+                    sw.direction,
+                ),
+            });
+        }
+    }
+    if let Some(sw) = case.switching() {
+        out.push(DrawnGap {
+            section: "switching",
+            moving_part: sw.moving_part.clone(),
+            body: sw.workpiece.clone(),
+            direction: sw.direction,
+            declared_m: sw.drawn_gap_m,
+            measured_m: mesh.gap_along(
+                &group_regions(&sw.moving_part),
+                &named(&sw.workpiece),
+                sw.direction,
+            ),
+        });
+    }
+    out
+}
+
+/// The warnings of [`drawn_gaps`] that differ from the drawing, in the case's length unit,
+/// each naming the declared and the measured gap.
+pub fn drawn_gap_warnings(case: &Case, mesh: &Mesh) -> Vec<String> {
+    let unit = case.unit();
+    let extent = mesh_extent(mesh);
+    let len = |m: f64| format!("{} {}", short(unit.from_metres(m)), unit.symbol());
+    drawn_gaps(case, mesh)
+        .into_iter()
+        .filter(|g| g.differs(extent))
+        .map(|g| {
+            let head = format!(
+                "WARNING [{}] drawn_gap = {}, but in the drawing moving part `{}`",
+                g.section,
+                len(g.declared_m),
+                g.moving_part
+            );
+            let towards = format!(
+                "{} along ({}, {})",
+                g.body
+                    .iter()
+                    .map(|b| format!("`{b}`"))
+                    .collect::<Vec<_>>()
+                    .join(" + "),
+                g.direction[0],
+                g.direction[1]
+            );
+            match g.measured_m {
+                Some(m) => format!(
+                    "{head} is {} from {towards}: every gap of the study is off by {}",
+                    len(m),
+                    len(g.declared_m - m)
+                ),
+                None => {
+                    format!("{head} never reaches {towards}: check `direction` and `drawn_gap`")
+                }
+            }
+        })
+        .collect()
+}
+
+/// A length for a message: six decimals without trailing zeros (0.5, not 0.5000000000000004),
+/// or three significant digits in exponent form below 1e-3.
+fn short(v: f64) -> String {
+    if v == 0.0 || v.abs() >= 1e-3 || !v.is_finite() {
+        let s = format!("{v:.6}");
+        let s = s.trim_end_matches('0').trim_end_matches('.');
+        if s == "-0" {
+            "0".into()
+        } else {
+            s.into()
+        }
+    } else {
+        format!("{v:.3e}")
+    }
 }
 
 /// Volume fraction of a linear magnet beyond its knee above which a result says so.
@@ -970,7 +1122,7 @@ impl std::fmt::Display for SolveSummary {
         for (name, b) in &self.peak_flux_density_t {
             writeln!(f, "  {name:<20} {b:.4} T")?;
         }
-        for w in &self.magnet_warnings {
+        for w in self.magnet_warnings.iter().chain(&self.gap_warnings) {
             writeln!(f, "{w}")?;
         }
         write!(

@@ -83,6 +83,38 @@ pub enum FemError {
         /// The valid range.
         reason: String,
     },
+    /// An open boundary whose circle leaves part of the rim it lies on without a condition:
+    /// a boundary edge of the mesh on the circle (or on the exterior disc's circle) that no
+    /// curve of the open boundary, and no other boundary condition, covers, so it would
+    /// silently stay natural and the field there would not see the unbounded exterior.
+    #[error(
+        "open boundary on curve `{curve}`: only {covered_percent:.1} % of the rim of radius \
+         {radius} m about ({centre_x} m, {centre_y} m) carries a boundary condition; the rim \
+         edge from ({x0} m, {y0} m) to ({x1} m, {y1} m) belongs to no curve `{curve}` and has \
+         no other condition, so it would silently be natural (name every arc of the rim \
+         `{curve}`)"
+    )]
+    PartialOpenBoundary {
+        /// The open boundary's curve name whose rim is incomplete (the circle, or the
+        /// exterior disc's boundary).
+        curve: String,
+        /// The rim's radius (m).
+        radius: f64,
+        /// Abscissa of the rim's centre (m).
+        centre_x: f64,
+        /// Ordinate of the rim's centre (m).
+        centre_y: f64,
+        /// How much of the rim's length carries a boundary condition (%).
+        covered_percent: f64,
+        /// Abscissa of the first uncovered edge's start (m).
+        x0: f64,
+        /// Ordinate of the first uncovered edge's start (m).
+        y0: f64,
+        /// Abscissa of the first uncovered edge's end (m).
+        x1: f64,
+        /// Ordinate of the first uncovered edge's end (m).
+        y1: f64,
+    },
     /// A periodic, anti-periodic or open-boundary curve pair whose nodes do not match.
     #[error("curve pair `{first}` / `{second}` is not matched: {reason}")]
     UnmatchedCurvePair {

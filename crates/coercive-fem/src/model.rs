@@ -1,6 +1,7 @@
 //! The [`Model`]: a mesh with a material per region, sources, boundary conditions, a
 //! formulation and an element order, validated once by [`ModelBuilder::build`].
 
+use std::collections::{HashMap, HashSet};
 use std::fmt;
 use std::sync::Arc;
 
@@ -196,6 +197,11 @@ pub enum PotentialValue {
 /// `exterior_centre`), which makes it the exact image of the unbounded exterior; its energy
 /// and co-energy are those of the whole exterior. See the derivation at
 /// `axisymmetric_kelvin` in this module's source.
+///
+/// The curve `circle` must cover the whole rim it lies on, and `exterior_boundary` the whole
+/// rim of the exterior disc: an outer mesh edge on either circle that neither they nor another
+/// boundary condition cover is refused ([`FemError::PartialOpenBoundary`]), since it would
+/// silently stay natural.
 ///
 /// Reference: E. M. Freeman and D. A. Lowther, "A novel mapping technique for open boundary
 /// finite element solutions to Poisson's equation", IEEE Trans. Magn. 25(5), 1989.
@@ -521,6 +527,7 @@ impl ModelBuilder {
 
         // Boundary conditions: names must exist; pairs must be matched.
         let mut region_kelvin: Vec<Option<KelvinImage>> = vec![None; nreg];
+        let conditioned = conditioned_edges(mesh, &self.boundary_conditions);
         for bc in &self.boundary_conditions {
             match bc {
                 BoundaryCondition::FixedPotential { curve, value } => {
@@ -543,6 +550,12 @@ impl ModelBuilder {
                     let pairs = matched_pairs(mesh, &o.circle, &o.exterior_boundary)?;
                     let shift = check_translated(mesh, &o.circle, &o.exterior_boundary, &pairs)?;
                     centre_node(mesh, o)?;
+                    let interior = [
+                        o.exterior_centre[0] - shift.0,
+                        o.exterior_centre[1] - shift.1,
+                    ];
+                    check_full_rim(mesh, &o.circle, interior, &conditioned)?;
+                    check_full_rim(mesh, &o.exterior_boundary, o.exterior_centre, &conditioned)?;
                     if self.formulation == Formulation::Axisymmetric {
                         let r = region("open boundary exterior", &o.exterior_region)?;
                         region_kelvin[r.index()] =
@@ -624,8 +637,21 @@ impl Model {
     }
 
     /// The material of one region.
+    ///
+    /// # Panics
+    /// If the mesh has no region `r`; [`Model::try_material`] returns an error instead.
     pub fn material(&self, r: RegionId) -> &Material {
         &self.materials[r.index()]
+    }
+
+    /// [`Model::material`] without panicking.
+    ///
+    /// # Errors
+    /// [`FemError::OutOfRange`] if the mesh has no region `r`.
+    pub fn try_material(&self, r: RegionId) -> Result<&Material, FemError> {
+        self.materials
+            .get(r.index())
+            .ok_or_else(|| region_out_of_range(r, self.materials.len()))
     }
 
     /// Materials indexed by region.
@@ -739,8 +765,23 @@ impl Model {
     }
 
     /// The name of a region.
+    ///
+    /// # Panics
+    /// If the mesh has no region `r`; [`Model::try_region_name`] returns an error instead.
     pub fn region_name(&self, r: RegionId) -> &str {
         &self.mesh.regions()[r.index()].name
+    }
+
+    /// [`Model::region_name`] without panicking.
+    ///
+    /// # Errors
+    /// [`FemError::OutOfRange`] if the mesh has no region `r`.
+    pub fn try_region_name(&self, r: RegionId) -> Result<&str, FemError> {
+        let regions = self.mesh.regions();
+        regions
+            .get(r.index())
+            .map(|region| region.name.as_str())
+            .ok_or_else(|| region_out_of_range(r, regions.len()))
     }
 
     /// Solves the model with default Newton settings (see [`Solver::solve`](crate::Solver)).
@@ -808,6 +849,100 @@ pub(crate) fn matched_pairs(
         }
     }
     Ok(out)
+}
+
+/// The mesh edges (sorted vertex pairs) lying on a curve that carries a boundary condition.
+fn conditioned_edges(mesh: &Mesh, conditions: &[BoundaryCondition]) -> HashSet<(u32, u32)> {
+    let mut names: Vec<&str> = Vec::new();
+    for bc in conditions {
+        match bc {
+            BoundaryCondition::FixedPotential { curve, .. }
+            | BoundaryCondition::FloatingPotential { curve } => names.push(curve),
+            BoundaryCondition::Periodic { first, second }
+            | BoundaryCondition::AntiPeriodic { first, second } => names.extend([&**first, second]),
+            BoundaryCondition::Open(o) => names.extend([&*o.circle, &o.exterior_boundary]),
+        }
+    }
+    let mut edges = HashSet::new();
+    for curve in mesh.curves() {
+        if curve.name.as_deref().is_some_and(|n| names.contains(&n)) {
+            for w in curve.nodes.windows(2) {
+                edges.insert((w[0].0.min(w[1].0), w[0].0.max(w[1].0)));
+            }
+        }
+    }
+    edges
+}
+
+/// Checks that an open boundary's curve `name` (a circle, or arcs of one, about `centre`)
+/// covers the whole rim it lies on: every boundary edge of the mesh (an edge of exactly one
+/// triangle) whose two nodes lie on that circle must carry a boundary condition, the open
+/// boundary's own or another one (a symmetry line's fixed potential may end on the rim).
+///
+/// The radius is the largest distance of the curve's nodes from `centre`; a node is on the
+/// circle within 1e-6 of the radius.
+fn check_full_rim(
+    mesh: &Mesh,
+    name: &str,
+    centre: [f64; 2],
+    conditioned: &HashSet<(u32, u32)>,
+) -> Result<(), FemError> {
+    let dist = |v: u32| {
+        let p = mesh.vertices()[v as usize];
+        (p.x - centre[0]).hypot(p.y - centre[1])
+    };
+    let radius = mesh
+        .curves_named(name)
+        .iter()
+        .flat_map(|&c| mesh.curve_nodes(c))
+        .map(|v| dist(v.0))
+        .fold(0.0_f64, f64::max);
+    if !(radius > 0.0 && radius.is_finite()) {
+        return Ok(());
+    }
+    let on_rim = |v: u32| (dist(v) - radius).abs() <= 1e-6 * radius;
+    let mut count: HashMap<(u32, u32), u32> = HashMap::with_capacity(3 * mesh.triangles().len());
+    for tri in mesh.triangles() {
+        for k in 0..3 {
+            let (a, b) = (tri[k].0, tri[(k + 1) % 3].0);
+            *count.entry((a.min(b), a.max(b))).or_insert(0) += 1;
+        }
+    }
+    let length = |(a, b): (u32, u32)| {
+        let (p, q) = (mesh.vertices()[a as usize], mesh.vertices()[b as usize]);
+        (q.x - p.x).hypot(q.y - p.y)
+    };
+    let mut rim: Vec<(u32, u32)> = count
+        .into_iter()
+        .filter(|&((a, b), n)| n == 1 && on_rim(a) && on_rim(b))
+        .map(|(e, _)| e)
+        .collect();
+    // A fixed order, so the error names the same edge on every run.
+    rim.sort_unstable();
+    let Some(&first) = rim.iter().find(|e| !conditioned.contains(e)) else {
+        return Ok(());
+    };
+    let total: f64 = rim.iter().map(|&e| length(e)).sum();
+    let covered: f64 = rim
+        .iter()
+        .filter(|e| conditioned.contains(e))
+        .map(|&e| length(e))
+        .sum();
+    let (p, q) = (
+        mesh.vertices()[first.0 as usize],
+        mesh.vertices()[first.1 as usize],
+    );
+    Err(FemError::PartialOpenBoundary {
+        curve: name.to_string(),
+        radius,
+        centre_x: centre[0],
+        centre_y: centre[1],
+        covered_percent: 100.0 * covered / total,
+        x0: p.x,
+        y0: p.y,
+        x1: q.x,
+        y1: q.y,
+    })
 }
 
 /// Checks that the matched nodes of an open-boundary pair are translates of each other, and
@@ -999,4 +1134,16 @@ pub(crate) fn centre_node(mesh: &Mesh, o: &OpenBoundary) -> Result<usize, FemErr
         });
     }
     Ok(i)
+}
+
+/// The error of a `try_` accessor given a region id the mesh does not hold.
+fn region_out_of_range(r: RegionId, count: usize) -> FemError {
+    FemError::OutOfRange {
+        what: "region id".into(),
+        value: r.index() as f64,
+        reason: format!(
+            "the mesh has {count} regions (ids 0 to {})",
+            count.max(1) - 1
+        ),
+    }
 }

@@ -289,6 +289,33 @@ fn try_getters_reject_ids_beyond_the_mesh() {
     );
 }
 
+#[test]
+fn model_try_getters_reject_regions_beyond_the_mesh() {
+    use coercive_mesh::RegionId;
+    let model = builder()
+        .material("air", Material::vacuum())
+        .fixed_potential("left", 0.0)
+        .build()
+        .unwrap();
+    assert_eq!(model.try_region_name(RegionId(0)).unwrap(), "air");
+    assert_eq!(
+        model.try_material(RegionId(0)).unwrap(),
+        model.material(RegionId(0))
+    );
+    for r in [RegionId(1), RegionId(u32::MAX)] {
+        for e in [
+            model.try_material(r).unwrap_err(),
+            model.try_region_name(r).unwrap_err(),
+        ] {
+            assert!(
+                matches!(&e, FemError::OutOfRange { what, .. } if what == "region id"),
+                "{e}"
+            );
+            assert!(e.to_string().contains("1 regions"), "{e}");
+        }
+    }
+}
+
 /// A failed Newton solve's Debug output summarises the last iterate instead of listing it.
 #[test]
 fn newton_failure_debug_does_not_print_the_iterate() {

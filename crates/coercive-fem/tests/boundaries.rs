@@ -220,3 +220,107 @@ fn kelvin_open_boundary_reproduces_the_unbounded_field() {
         "truncation should matter here: {worst_truncated}"
     );
 }
+
+/// Splits every curve named `name` at its middle node: the first half keeps the name, the
+/// second half is renamed `rest` (the pair's curve ids and lengths are kept, so the halves
+/// of a matched pair stay matched).
+fn split_rim(mesh: &Mesh, names: [&str; 2], rests: [&str; 2]) -> Mesh {
+    let mut curves = mesh.curves().to_vec();
+    let mut extra = Vec::new();
+    for curve in &mut curves {
+        for (name, rest) in names.iter().zip(rests) {
+            if curve.name.as_deref() == Some(*name) {
+                let half = curve.nodes.len() / 2;
+                extra.push(MeshCurve {
+                    name: Some(rest.into()),
+                    nodes: curve.nodes[half..].to_vec(),
+                });
+                curve.nodes.truncate(half + 1);
+            }
+        }
+    }
+    curves.extend(extra);
+    Mesh::from_parts(
+        mesh.vertices().to_vec(),
+        mesh.triangles().to_vec(),
+        mesh.triangle_regions().to_vec(),
+        mesh.regions().to_vec(),
+        curves,
+        mesh.curve_pairs().to_vec(),
+    )
+    .unwrap()
+}
+
+/// An open boundary whose circle covers only half of the interior rim (the other half would
+/// silently stay natural) is refused, naming the curve and the uncovered edge; the same rim
+/// with the other half under a fixed potential is accepted (every edge has a condition).
+#[test]
+fn an_open_boundary_covering_part_of_the_rim_is_refused() {
+    let big_r = 0.02;
+    let interior = common::polar(
+        [0.0, 0.0],
+        &common::linspace(0.0, big_r, 5),
+        &["air"; 5],
+        32,
+        2.0 * PI,
+    );
+    let centre = [5.0 * big_r, 0.0];
+    let exterior = common::polar(
+        centre,
+        &common::linspace(0.0, big_r, 5),
+        &["disc"; 5],
+        32,
+        2.0 * PI,
+    );
+    let mesh = split_rim(
+        &join_with_exterior(&interior, &exterior),
+        ["outer", "ext_rim"],
+        ["outer_rest", "ext_rest"],
+    );
+    let open = OpenBoundary {
+        circle: "outer".into(),
+        exterior_boundary: "ext_rim".into(),
+        exterior_region: "exterior_disc".into(),
+        exterior_centre: centre,
+    };
+    let builder = || {
+        Model::builder(mesh.clone(), Formulation::Planar { depth_m: 1.0 })
+            .material("air", Material::vacuum())
+            .current_density("air", 1e6)
+            .open_boundary(open.clone())
+    };
+    let e = builder().build().unwrap_err();
+    match &e {
+        coercive_fem::FemError::PartialOpenBoundary {
+            curve,
+            radius,
+            covered_percent,
+            x0,
+            y0,
+            ..
+        } => {
+            assert_eq!(curve, "outer");
+            assert!((radius - big_r).abs() < 1e-12, "{e}");
+            // Half of the 32 rim edges carry the open boundary.
+            assert!((covered_percent - 50.0).abs() < 1e-9, "{e}");
+            assert!(((x0.hypot(*y0)) - big_r).abs() < 1e-12, "{e}");
+        }
+        other => panic!("unexpected {other:?}"),
+    }
+    assert!(e.to_string().contains("silently be natural"), "{e}");
+    // The interior's other half under a fixed potential: the exterior disc's rim is now the
+    // incomplete one.
+    let e = builder()
+        .fixed_potential("outer_rest", 0.0)
+        .build()
+        .unwrap_err();
+    assert!(
+        matches!(&e, coercive_fem::FemError::PartialOpenBoundary { curve, .. } if curve == "ext_rim"),
+        "{e}"
+    );
+    builder()
+        .fixed_potential("outer_rest", 0.0)
+        .fixed_potential("ext_rest", 0.0)
+        .build()
+        .unwrap();
+}

@@ -13,6 +13,26 @@ pub enum MeshError {
         /// The violated invariant.
         what: String,
     },
+    /// One item of a mesh (a triangle, vertex, region, curve or curve pair, numbered from 1 as
+    /// in every message of the project) breaks an invariant: typically a stored mesh read back
+    /// with serde or built with [`Mesh::from_parts`](crate::Mesh::from_parts).
+    #[error("invalid mesh: {item} {why}")]
+    InvalidMeshItem {
+        /// The offending item, e.g. `triangle 12 (vertices 3, 8, 9) in region "air"`.
+        item: String,
+        /// What is wrong with it.
+        why: String,
+    },
+    /// An id passed to a `try_` accessor of a [`Mesh`](crate::Mesh) that the mesh does not hold.
+    #[error("{kind} id {id} does not exist: the mesh has {count} of them (ids start at 0)")]
+    UnknownId {
+        /// What the id names: `vertex`, `triangle`, `region` or `curve`.
+        kind: String,
+        /// The id as given (ids are 0-based handles).
+        id: u32,
+        /// How many items of this kind the mesh holds.
+        count: usize,
+    },
     /// The geometry has no curves or no region.
     #[error("empty geometry: {what}")]
     EmptyGeometry {
@@ -27,6 +47,17 @@ pub enum MeshError {
         /// Abscissa as given.
         x: f64,
         /// Ordinate as given.
+        y: f64,
+    },
+    /// A point with a coordinate the triangulation cannot hold: nonzero but below 1e-40 m in
+    /// magnitude (write 0), or above 1e50 m.
+    #[error("{item} has a coordinate out of range ({x}, {y}): nonzero coordinates must lie between 1e-40 m and 1e50 m in magnitude (write a vanishing one as 0)")]
+    CoordinateOutOfRange {
+        /// The offending item, e.g. `point 3`.
+        item: String,
+        /// Abscissa as given (m).
+        x: f64,
+        /// Ordinate as given (m).
         y: f64,
     },
     /// A curve refers to a point id that does not exist.

@@ -246,3 +246,22 @@ fn curves_almost_touching_ask_for_too_many_triangles() {
     g.regions[0].seed = Point2::new(0.1, 0.1);
     assert!(matches!(err(&g), MeshError::TooManyTriangles { .. }));
 }
+
+#[test]
+fn coordinates_the_triangulation_cannot_hold_are_named() {
+    for (x, y) in [(1e-300, 0.0), (0.0, -1e-45), (1e55, 0.0)] {
+        let mut g = Geometry::new();
+        g.add_rectangle(Point2::new(x, y), Point2::new(1.0, 1.0));
+        g.add_region("r", Point2::new(0.5, 0.5));
+        match err(&g) {
+            MeshError::CoordinateOutOfRange { item, .. } => assert_eq!(item, "point 0"),
+            other => panic!("({x}, {y}): {other:?}"),
+        }
+    }
+    // Tiny but representable coordinates mesh as they are.
+    let mut g = Geometry::new();
+    g.add_rectangle(Point2::new(1e-30, 0.0), Point2::new(1.0, 1.0));
+    g.add_region("r", Point2::new(0.5, 0.5));
+    g.settings.max_size = Some(0.2);
+    g.mesh().unwrap().sanity_check().unwrap();
+}

@@ -82,6 +82,29 @@ fn finite(item: impl FnOnce() -> String, p: Point2) -> Result<(), MeshError> {
     }
 }
 
+/// The smallest nonzero coordinate magnitude (m) the triangulation takes (its exact
+/// predicates stop at about 1.8e-43; a margin is kept).
+const MIN_COORDINATE: f64 = 1e-40;
+/// The largest coordinate magnitude (m) the triangulation takes (its limit is about 3.2e60,
+/// and the bounding box it adds around the drawing is three times wider).
+const MAX_COORDINATE: f64 = 1e50;
+
+/// Refuses a point the triangulation cannot hold: a nonzero coordinate below
+/// [`MIN_COORDINATE`] in magnitude (a value that means zero, e.g. 1e-300) or one above
+/// [`MAX_COORDINATE`].
+fn representable(item: impl FnOnce() -> String, p: Point2) -> Result<(), MeshError> {
+    let ok = |v: f64| v == 0.0 || (MIN_COORDINATE..=MAX_COORDINATE).contains(&v.abs());
+    if ok(p.x) && ok(p.y) {
+        Ok(())
+    } else {
+        Err(MeshError::CoordinateOutOfRange {
+            item: item(),
+            x: p.x,
+            y: p.y,
+        })
+    }
+}
+
 fn positive_size(item: impl FnOnce() -> String, v: f64, diag: f64) -> Result<(), MeshError> {
     if !(v.is_finite() && v > 0.0) {
         return Err(MeshError::InvalidSize {
@@ -152,6 +175,7 @@ pub(crate) fn validate(g: &Geometry) -> Result<(), MeshError> {
     }
     for (i, p) in g.points.iter().enumerate() {
         finite(|| format!("point {i}"), p.position)?;
+        representable(|| format!("point {i}"), p.position)?;
     }
     for (i, c) in g.curves.iter().enumerate() {
         for p in [c.shape.start(), c.shape.end()] {
