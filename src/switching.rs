@@ -99,8 +99,8 @@ pub struct SwitchingSetup {
 pub struct SwitchingSettings {
     /// Gaps of the ON and OFF force curves (m).
     pub gaps_m: Vec<f64>,
-    /// A pulse amplitude (A per turn) that certainly switches fully: the upper end of the
-    /// bisection and the reference of the switched fraction.
+    /// A pulse amplitude (A per turn) that certainly switches fully: where the threshold
+    /// search starts and the reference of the switched fraction.
     pub full_pulse_a: f64,
     /// Fraction of the full switch that counts as switched (default 0.95).
     pub switched_fraction: f64,
@@ -745,7 +745,7 @@ pub fn eddy_current_note(rho: f64, tau: f64) -> String {
 /// hysteretic and start forward (the ON state as magnetised).
 ///
 /// Steps: a full OFF pulse from the as-magnetised state, a full ON pulse back (the reference
-/// ON state); the OFF and ON thresholds by bisection from those states; the recommended
+/// ON state); the OFF and ON thresholds by a search on the amplitude from those states; the recommended
 /// pulses (threshold times the margin) with the workpiece present and removed; the holding
 /// force versus gap in the ON and OFF states they leave; the partial-switching curve.
 ///

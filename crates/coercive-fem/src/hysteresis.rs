@@ -640,14 +640,7 @@ impl HysteresisLaw {
             ("coercive field Hc (A/m)", self.coercive_field),
             ("width s (A/m)", self.width),
         ];
-        for (name, value) in positive {
-            if !value.is_finite() {
-                return bad(name, value, "must be finite");
-            }
-            if value <= 0.0 {
-                return bad(name, value, "must be positive");
-            }
-        }
+        check_positive(&positive, &bad)?;
         check_reversible(self.recoil_permeability, self.reversible_polarisation, bad)?;
         Ok(())
     }
@@ -1300,6 +1293,22 @@ impl HysteresisLaw {
 /// Checks a recoil permeability (finite, at least 1) and the reversible part's saturation J_r
 /// (finite, non-negative, positive when the recoil permeability exceeds 1), reporting through
 /// `bad` (the caller names the law or grade).
+/// Each (name, value) finite and positive, or `bad` naming the first that is not.
+fn check_positive(
+    values: &[(&'static str, f64)],
+    bad: &impl Fn(&'static str, f64, &'static str) -> Result<(), MaterialError>,
+) -> Result<(), MaterialError> {
+    for &(name, value) in values {
+        if !value.is_finite() {
+            return bad(name, value, "must be finite");
+        }
+        if value <= 0.0 {
+            return bad(name, value, "must be positive");
+        }
+    }
+    Ok(())
+}
+
 fn check_reversible(
     mu: f64,
     jr: f64,
@@ -1462,14 +1471,7 @@ impl MagnetDatasheet {
             ("resistivity (Ohm m)", self.resistivity),
             ("saturation field (A/m)", self.saturation_field),
         ];
-        for (name, value) in positive {
-            if !value.is_finite() {
-                return bad(name, value, "must be finite");
-            }
-            if value <= 0.0 {
-                return bad(name, value, "must be positive");
-            }
-        }
+        check_positive(&positive, &bad)?;
         check_reversible(self.recoil_permeability, self.reversible_polarisation, bad)?;
         let inconsistent = |quantity: &'static str, value: f64, bound: f64, reason| {
             Err(MaterialError::InconsistentDatasheet {
