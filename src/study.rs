@@ -405,20 +405,23 @@ where
             state,
             previous.as_ref().map(|(c, _)| c.potential()),
         )?;
+        // The change of the centre field from the previous state's (same mesh).
+        let change: Option<Vec<f64>> = previous.as_ref().map(|(before_centre, _)| {
+            centre
+                .potential()
+                .iter()
+                .zip(before_centre.potential())
+                .map(|(x, y)| x - y)
+                .collect()
+        });
         let shifted: Vec<Solution> = shifted_setups
             .iter()
             .enumerate()
             .map(|(j, setup)| {
-                let initial: Vec<f64> = match &previous {
-                    Some((before_centre, before)) => {
-                        let change: Vec<f64> = centre
-                            .potential()
-                            .iter()
-                            .zip(before_centre.potential())
-                            .map(|(x, y)| x - y)
-                            .collect();
+                let initial: Vec<f64> = match (&previous, &change) {
+                    (Some((_, before)), Some(change)) => {
                         let delta =
-                            transferred_values(&centre, &change, &locator, setup.1.node_points());
+                            transferred_values(&centre, change, &locator, setup.1.node_points());
                         before[j]
                             .potential()
                             .iter()
@@ -426,7 +429,7 @@ where
                             .map(|(x, d)| x + d)
                             .collect()
                     }
-                    None => transferred(&centre, &locator, setup.1.node_points()),
+                    _ => transferred(&centre, &locator, setup.1.node_points()),
                 };
                 solve(setup, state, Some(&initial))
             })

@@ -656,13 +656,7 @@ where
                     .solution
                     .as_ref()
                     .ok_or_else(|| invalid(&label, "no solution at its peak".into()))?;
-                let rise_energy: f64 = run.steps[..=at]
-                    .windows(2)
-                    .map(|w| {
-                        0.5 * (w[0].currents[0] + w[1].currents[0])
-                            * (w[1].flux_linkages[0] - w[0].flux_linkages[0])
-                    })
-                    .sum();
+                let rise_energy = run.source_energies_through(at)[0];
                 let rise_iterations: usize = run.steps[..=at].iter().map(|s| s.iterations).sum();
                 // The fall keeps the rise's step length (a fraction of the top amplitude).
                 let fall = HistorySettings {

@@ -242,8 +242,15 @@ impl HistoryRun {
     /// trapezoidal rule over the load steps (J per metre planar, J axisymmetric); the first
     /// step counts from the state the history started in, at the first waypoint's currents.
     pub fn source_energies(&self) -> Vec<f64> {
+        self.source_energies_through(self.steps.len().saturating_sub(1))
+    }
+
+    /// [`HistoryRun::source_energies`] from the first step through step `last` (0-based; a
+    /// later index counts to the end): what the windings delivered up to a waypoint.
+    pub fn source_energies_through(&self, last: usize) -> Vec<f64> {
         let mut e = vec![0.0; self.windings.len()];
-        for w in self.steps.windows(2) {
+        let end = (last + 1).min(self.steps.len());
+        for w in self.steps[..end].windows(2) {
             for (k, ek) in e.iter_mut().enumerate() {
                 *ek += 0.5
                     * (w[0].currents[k] + w[1].currents[k])
